@@ -16,7 +16,7 @@ type Spec struct {
 	Format      int
 	Name        string
 	Description string
-	// Seed is the scenario seed; run r is simulated from RunSeed(Seed, r).
+	// Seed is the scenario seed; run r is simulated from sim.RunSeed(Seed, r).
 	Seed uint64
 	// Steps is the number of scans in a run.
 	Steps int
