@@ -1,0 +1,275 @@
+// Package result holds the complete outcome of a trackgate run: every check,
+// metric, divergence and tracker fault, per scenario and run. It is the one
+// source every report format is rendered from, and it is written to disk as
+// versioned JSON (see Version) so that a report can be redrawn later.
+//
+// The types carry data only; checking, metrics and rendering live in other
+// packages.
+package result
+
+// Version is the version of the result JSON layout. It changes whenever a
+// field is renamed or its meaning changes; adding a field does not change it.
+const Version = 1
+
+// Status is the outcome of one check, run, scenario or suite.
+type Status string
+
+// The statuses, from best to worst. A suite or scenario takes the worst status
+// of its parts.
+const (
+	Pass Status = "pass" // everything within tolerance
+	// Tie marks a changed association where the reference's best hypothesis
+	// was not clear (margin under the ambiguity threshold): reported, not a
+	// failure.
+	Tie     Status = "tie"
+	Skip    Status = "skip"  // not run (no golden to compare with, filtered out)
+	Fail    Status = "fail"  // a regression
+	Faulted Status = "fault" // the tracker itself faulted
+	Error   Status = "error" // trackgate could not run the check (bad scenario, stale golden...)
+)
+
+// Rank orders statuses by severity: Pass < Tie < Skip < Fail < Faulted < Error.
+func (s Status) Rank() int {
+	switch s {
+	case Pass:
+		return 0
+	case Tie:
+		return 1
+	case Skip:
+		return 2
+	case Fail:
+		return 3
+	case Faulted:
+		return 4
+	case Error:
+		return 5
+	}
+	return 5
+}
+
+// Worst returns the more severe of a and b.
+func Worst(a, b Status) Status {
+	if b.Rank() > a.Rank() {
+		return b
+	}
+	return a
+}
+
+// Suite is the result of one trackgate invocation (or the merge of shards).
+type Suite struct {
+	// Version is the result layout version (Version).
+	Version int `json:"version"`
+	// Tool is the trackgate version that produced the result.
+	Tool     string   `json:"tool"`
+	Platform Platform `json:"platform"`
+	Tracker  Tracker  `json:"tracker"`
+	// Against names what the tracker was compared with: "reference",
+	// "golden" or "both".
+	Against string `json:"against"`
+	// Shard is set when the suite is one shard of a larger one.
+	Shard     *Shard     `json:"shard,omitempty"`
+	Status    Status     `json:"status"`
+	Scenarios []Scenario `json:"scenarios"`
+}
+
+// Platform records where the result was produced; floating-point results can
+// differ in the last bits between platforms.
+type Platform struct {
+	GoVersion string `json:"go"`
+	GOOS      string `json:"goos"`
+	GOARCH    string `json:"goarch"`
+	// GOAMD64 is the amd64 micro-architecture level ("v1".."v4"), "" elsewhere.
+	GOAMD64 string `json:"goamd64,omitempty"`
+}
+
+// Tracker identifies the tracker under test.
+type Tracker struct {
+	// Command is the argument vector that started it.
+	Command []string `json:"command"`
+	// Name and Version are what the tracker said in its opening reply.
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+// Shard says which share of the (scenario, run) pairs a suite covers.
+type Shard struct {
+	// Index is 0-based; Total is the number of shards.
+	Index int `json:"index"`
+	Total int `json:"total"`
+}
+
+// Scenario is the result of all runs of one scenario.
+type Scenario struct {
+	Name        string `json:"name"`
+	File        string `json:"file"`
+	Description string `json:"description"`
+	// Hash is the scenario's content hash (hex SHA-256 of the file).
+	Hash string `json:"hash"`
+	// StateDim and MeasDim size the vectors in the traces.
+	StateDim int `json:"state_dim"`
+	MeasDim  int `json:"meas_dim"`
+	// Position lists the state components that are positions (for plots
+	// and position metrics), in axis order.
+	Position []int  `json:"position"`
+	Status   Status `json:"status"`
+	Runs     []Run  `json:"runs"`
+	// Metrics summarises the accuracy and consistency metrics over the runs.
+	Metrics *Metrics `json:"metrics,omitempty"`
+	// Gates are the statistical gates evaluated on the metrics.
+	Gates []Gate `json:"gates,omitempty"`
+}
+
+// Run is the result of one Monte Carlo run of a scenario.
+type Run struct {
+	Index  int    `json:"index"`
+	Seed   uint64 `json:"seed"`
+	Status Status `json:"status"`
+	// Checks are the comparisons made on this run (against the reference,
+	// the golden file, one-step conformance...).
+	Checks []Check `json:"checks"`
+	// Fault is set when the tracker faulted during the run.
+	Fault *Fault `json:"fault,omitempty"`
+	// Metrics are this run's per-step metric series.
+	Metrics *RunMetrics `json:"metrics,omitempty"`
+	// Trace holds what the plots of this run need; it may be omitted for
+	// large suites.
+	Trace *Trace `json:"trace,omitempty"`
+}
+
+// Check is one comparison made on a run.
+type Check struct {
+	// Name says what was compared: "reference", "golden", "conformance",
+	// "identity", "metrics".
+	Name    string `json:"name"`
+	Status  Status `json:"status"`
+	Message string `json:"message,omitempty"`
+	// First is the first step where the tracker departs, when it does.
+	First *Divergence `json:"first,omitempty"`
+	// Diffs lists differences beyond tolerance (capped; see Truncated).
+	Diffs     []Diff `json:"diffs,omitempty"`
+	Truncated int    `json:"truncated,omitempty"`
+	// Ties lists changed associations judged ties, by step.
+	Ties []Divergence `json:"ties,omitempty"`
+}
+
+// Divergence names where and why a tracker departed from what was expected.
+type Divergence struct {
+	Step int `json:"step"`
+	// Kind is "association", "estimate", "track-count", "identity" or
+	// "fault".
+	Kind    string   `json:"kind"`
+	Objects []string `json:"objects,omitempty"`
+	Message string   `json:"message"`
+	// Margin is the reference's cost gap between its best and second-best
+	// hypotheses at the step, for association divergences.
+	Margin *float64 `json:"margin,omitempty"`
+	// Probability is the probability the reference gives the tracker's
+	// hypothesis, when it is among the reference's k best.
+	Probability *float64 `json:"probability,omitempty"`
+}
+
+// Diff is one value beyond tolerance.
+type Diff struct {
+	// Path locates the value: "step 17 / track ferry / mean[2]".
+	Path string  `json:"path"`
+	Want float64 `json:"want"`
+	Got  float64 `json:"got"`
+	// Tolerance describes the rule that was exceeded ("abs 1e-9 + rel
+	// 1e-12", "4 ulp") and Excess by how much, in the rule's own unit.
+	Tolerance string  `json:"tolerance"`
+	Excess    float64 `json:"excess"`
+}
+
+// Fault is a tracker fault, classified.
+type Fault struct {
+	// Class is the fault class ("crash", "hang", "invalid-json",
+	// "non-finite", ...).
+	Class   string `json:"class"`
+	Step    int    `json:"step"`
+	Line    int    `json:"line"`
+	Message string `json:"message"`
+	Excerpt string `json:"excerpt,omitempty"`
+	// Stderr is the tail of the tracker's standard error.
+	Stderr string `json:"stderr,omitempty"`
+}
+
+// RunMetrics are per-step metric series of one run; a NaN-free encoding is
+// used: steps where a value does not exist are left out of the series.
+type RunMetrics struct {
+	GOSPA []float64 `json:"gospa"`
+	// NEES is the average NEES over the matched tracks at each step.
+	NEES []float64 `json:"nees,omitempty"`
+	// MeanGOSPA is the time average of GOSPA.
+	MeanGOSPA       float64 `json:"mean_gospa"`
+	IDSwitches      int     `json:"id_switches"`
+	TrackBreaks     int     `json:"track_breaks"`
+	FalseTracks     int     `json:"false_tracks"`
+	MissedObjects   int     `json:"missed_objects"`
+	PositionRMSE    float64 `json:"position_rmse"`
+	MeanNIS         float64 `json:"mean_nis,omitempty"`
+	NEESStepsInBand float64 `json:"nees_steps_in_band,omitempty"`
+}
+
+// Metrics summarises a scenario's metrics over its runs.
+type Metrics struct {
+	Runs int `json:"runs"`
+	// GOSPA is the per-step GOSPA averaged over runs.
+	GOSPA     []float64 `json:"gospa"`
+	MeanGOSPA float64   `json:"mean_gospa"`
+	// NEES is the per-step average NEES over runs, with its acceptance
+	// band [NEESLow, NEESHigh] at confidence NEESConfidence.
+	NEES           []float64 `json:"nees,omitempty"`
+	NEESLow        float64   `json:"nees_low,omitempty"`
+	NEESHigh       float64   `json:"nees_high,omitempty"`
+	NEESConfidence float64   `json:"nees_confidence,omitempty"`
+	// NEESInBand is the fraction of steps whose average NEES lies in the band.
+	NEESInBand   float64 `json:"nees_in_band,omitempty"`
+	PositionRMSE float64 `json:"position_rmse"`
+	IDSwitches   int     `json:"id_switches"`
+	FalseTracks  int     `json:"false_tracks"`
+}
+
+// Gate is one statistical gate and its decision.
+type Gate struct {
+	Name   string `json:"name"`
+	Status Status `json:"status"`
+	// Estimate with its confidence interval [Low, High], and the threshold
+	// it was judged against.
+	Estimate  float64 `json:"estimate"`
+	Low       float64 `json:"low"`
+	High      float64 `json:"high"`
+	Threshold float64 `json:"threshold"`
+	Message   string  `json:"message"`
+}
+
+// Trace is what the plots of one run need: truth, detections and the
+// reference's and the tracker's estimates, positions only.
+type Trace struct {
+	// Truth holds each object's true positions by step.
+	Truth []Path `json:"truth"`
+	// Detections holds, per step, the measured positions.
+	Detections [][]Point `json:"detections"`
+	// Reference and Tracker hold the estimated tracks, with 2-sigma
+	// ellipses where covariances are known.
+	Reference []Path `json:"reference"`
+	Tracker   []Path `json:"tracker"`
+	// Associations lists, per step, whether the tracker's association agreed
+	// with the reference's ("same", "tie", "differs").
+	Associations []string `json:"associations,omitempty"`
+}
+
+// Path is one object's or track's positions over time.
+type Path struct {
+	ID     string  `json:"id"`
+	Points []Point `json:"points"`
+}
+
+// Point is a position at a step; in 1-D scenarios X is the position and Y
+// is unused. Ellipse, when present, is the 2-sigma position covariance as
+// [σxx, σxy, σyy].
+type Point struct {
+	Step    int         `json:"step"`
+	X       float64     `json:"x"`
+	Y       float64     `json:"y"`
+	Ellipse *[3]float64 `json:"ellipse,omitempty"`
+}
