@@ -1,0 +1,243 @@
+package assign
+
+import (
+	"container/heap"
+	"math"
+)
+
+// Hypothesis is one full assignment and its cost.
+type Hypothesis struct {
+	Cost     float64
+	RowToCol []int
+}
+
+// KBest returns up to k best assignments in non-decreasing order of cost
+// (fewer when fewer feasible ones exist), each distinct, by Murty's
+// partitioning. Assignments are complete in the sense of [Workspace.Solve]:
+// every row is assigned when rows ≤ cols, every column when rows > cols.
+// Equal costs come out in a deterministic but unspecified order. It returns
+// ErrInfeasible when not even one assignment exists, and nil for k ≤ 0.
+//
+// Each subproblem is solved from its parent's duals and partial assignment
+// with a single shortest augmenting path (Miller, Stone and Cox 1997), on the
+// problem padded to square with zero-cost phantom rows; see the package
+// documentation.
+func KBest(cost []float64, rows, cols, k int) ([]Hypothesis, error) {
+	if err := checkDims(cost, rows, cols, rows); err != nil {
+		return nil, err
+	}
+	if err := checkEntries(cost, cols, false); err != nil {
+		return nil, err
+	}
+	if k <= 0 {
+		return nil, nil
+	}
+	if rows == 0 || cols == 0 {
+		h := Hypothesis{RowToCol: make([]int, rows)}
+		for i := range h.RowToCol {
+			h.RowToCol[i] = -1
+		}
+		return []Hypothesis{h}, nil
+	}
+	r := newRanker(cost, rows, cols)
+	return r.run(k)
+}
+
+// ranker holds the square padded problem and the heap of solved subproblems.
+type ranker struct {
+	cost       []float64 // the caller's matrix
+	rows, cols int
+	transposed bool
+	nr         int       // real rows of the internal wide problem
+	n          int       // side of the padded square problem
+	base       []float64 // n×n: real rows, then zero-cost phantom rows
+	scratch    []float64 // base with one node's constraints applied
+	ws         Workspace
+	queue      nodeHeap
+	seq        int
+}
+
+// node is a solved subproblem: its constraints, optimum and duals.
+type node struct {
+	cost      float64
+	seq       int   // creation order, breaks ties deterministically
+	col4row   []int // n entries
+	u, v      []float64
+	forced    []int32 // per real row: forced column or -1
+	forbidden []int32 // flat (row, column) pairs
+}
+
+func newRanker(cost []float64, rows, cols int) *ranker {
+	r := &ranker{cost: cost, rows: rows, cols: cols, transposed: rows > cols}
+	r.nr, r.n = rows, cols
+	if r.transposed {
+		r.nr, r.n = cols, rows
+	}
+	n := r.n
+	r.base = make([]float64, n*n) // phantom rows stay zero
+	for i := 0; i < rows; i++ {
+		for j := 0; j < cols; j++ {
+			x := cost[i*cols+j]
+			if r.transposed {
+				r.base[j*n+i] = x
+			} else {
+				r.base[i*n+j] = x
+			}
+		}
+	}
+	r.scratch = make([]float64, n*n)
+	return r
+}
+
+func (r *ranker) run(k int) ([]Hypothesis, error) {
+	n := r.n
+	rowToCol := make([]int, n)
+	if _, err := r.ws.Solve(r.base, n, n, rowToCol); err != nil {
+		return nil, err
+	}
+	root := &node{
+		col4row: append([]int(nil), r.ws.col4row[:n]...),
+		u:       append([]float64(nil), r.ws.u[:n]...),
+		v:       append([]float64(nil), r.ws.v[:n]...),
+		forced:  make([]int32, r.nr),
+	}
+	for i := range root.forced {
+		root.forced[i] = -1
+	}
+	root.cost = r.total(root.col4row)
+	r.push(root)
+
+	var out []Hypothesis
+	for len(out) < k && r.queue.Len() > 0 {
+		best := heap.Pop(&r.queue).(*node)
+		out = append(out, r.hypothesis(best))
+		if len(out) < k {
+			r.partition(best)
+		}
+	}
+	return out, nil
+}
+
+func (r *ranker) push(nd *node) {
+	nd.seq = r.seq
+	r.seq++
+	heap.Push(&r.queue, nd)
+}
+
+// total is the cost of an internal assignment on the caller's matrix.
+func (r *ranker) total(col4row []int) float64 {
+	s := 0.0
+	for i := 0; i < r.nr; i++ {
+		s += r.base[i*r.n+col4row[i]]
+	}
+	return s
+}
+
+func (r *ranker) hypothesis(nd *node) Hypothesis {
+	h := Hypothesis{Cost: nd.cost, RowToCol: make([]int, r.rows)}
+	if r.transposed {
+		for i := range h.RowToCol {
+			h.RowToCol[i] = -1
+		}
+		for i := 0; i < r.nr; i++ {
+			h.RowToCol[nd.col4row[i]] = i
+		}
+	} else {
+		copy(h.RowToCol, nd.col4row[:r.nr])
+	}
+	return h
+}
+
+// partition splits the solution space of nd minus its own optimum into
+// disjoint children (Murty 1968): child t forces the optimum's pairs in the
+// free real rows before row t and forbids the pair in row t. Each child is
+// solved by one augmenting path from the parent's duals and assignment.
+func (r *ranker) partition(nd *node) {
+	n := r.n
+	inf := math.Inf(1)
+	c := r.scratch
+	copy(c, r.base)
+	for t := 0; t+1 < len(nd.forbidden); t += 2 {
+		c[int(nd.forbidden[t])*n+int(nd.forbidden[t+1])] = inf
+	}
+	for i, j := range nd.forced {
+		if j >= 0 {
+			r.force(c, i, int(j))
+		}
+	}
+	forced := append([]int32(nil), nd.forced...)
+	ws := &r.ws
+	ws.reset(n, n)
+	for i := 0; i < r.nr; i++ {
+		if nd.forced[i] >= 0 {
+			continue
+		}
+		j := nd.col4row[i]
+		keep := c[i*n+j]
+		c[i*n+j] = inf
+
+		copy(ws.u[:n], nd.u)
+		copy(ws.v[:n], nd.v)
+		copy(ws.col4row[:n], nd.col4row)
+		for jj := range ws.row4col[:n] {
+			ws.row4col[jj] = -1
+		}
+		for ii, jj := range nd.col4row {
+			if ii != i {
+				ws.row4col[jj] = ii
+			}
+		}
+		ws.col4row[i] = -1
+		if ws.augment(c, n, i) {
+			child := &node{
+				col4row:   append([]int(nil), ws.col4row[:n]...),
+				u:         append([]float64(nil), ws.u[:n]...),
+				v:         append([]float64(nil), ws.v[:n]...),
+				forced:    append([]int32(nil), forced...),
+				forbidden: append(append(make([]int32, 0, len(nd.forbidden)+2), nd.forbidden...), int32(i), int32(j)),
+			}
+			child.cost = r.total(child.col4row)
+			r.push(child)
+		}
+
+		// Later children keep this pair: force it.
+		c[i*n+j] = keep
+		r.force(c, i, j)
+		forced[i] = int32(j)
+	}
+}
+
+// force forbids every pair in row i and column j except (i, j).
+func (r *ranker) force(c []float64, i, j int) {
+	n := r.n
+	inf := math.Inf(1)
+	keep := c[i*n+j]
+	row := c[i*n : i*n+n]
+	for jj := range row {
+		row[jj] = inf
+	}
+	for ii := 0; ii < n; ii++ {
+		c[ii*n+j] = inf
+	}
+	c[i*n+j] = keep
+}
+
+// nodeHeap orders solved subproblems by cost, then by creation order.
+type nodeHeap []*node
+
+func (h nodeHeap) Len() int { return len(h) }
+func (h nodeHeap) Less(a, b int) bool {
+	if h[a].cost != h[b].cost {
+		return h[a].cost < h[b].cost
+	}
+	return h[a].seq < h[b].seq
+}
+func (h nodeHeap) Swap(a, b int) { h[a], h[b] = h[b], h[a] }
+func (h *nodeHeap) Push(x any)   { *h = append(*h, x.(*node)) }
+func (h *nodeHeap) Pop() any {
+	old := *h
+	x := old[len(old)-1]
+	old[len(old)-1] = nil
+	*h = old[:len(old)-1]
+	return x
+}
