@@ -1,0 +1,171 @@
+package assign
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"testing"
+)
+
+// TestKBestPublished checks the ranked totals of CHECK-VALUES §5.2 (project
+// notes: exhaustive enumeration cross-checked with a Murty partitioning over
+// scipy 1.10.1 subproblem solves). The matrices are those of §4.2. Each list
+// is also recomputed here by the independent enumeration oracle.
+func TestKBestPublished(t *testing.T) {
+	byName := map[string]int{}
+	for i, tc := range published {
+		byName[tc.name] = i
+	}
+	ranked := []struct {
+		name string
+		want []float64
+	}{
+		{"A1", []float64{15, 16, 16, 17, 18, 18}},
+		{"A2", []float64{5, 6, 6, 7, 9, 11}},
+		{"A3", []float64{27, 30, 30, 34, 37, 38}},
+		{"A4", []float64{140, 142, 147, 161, 166, 181, 183, 188}},
+		{"A8", []float64{850, 1025, 1050, 1150, 1150, 1225}},
+		{"A9", []float64{452, 452, 553, 626, 627, 627, 701, 702}},
+		{"A10", []float64{18, 20, 22, 23, 24, 25}},
+		{"A13", []float64{29, 31, 32, 33, 33, 33, 34, 34}},
+	}
+	for _, tc := range ranked {
+		t.Run(tc.name, func(t *testing.T) {
+			p := published[byName[tc.name]]
+			all := enumerate(p.cost, p.rows, p.cols)
+			for i, want := range tc.want {
+				if !near(all[i].Cost, want) {
+					t.Fatalf("oracle rank %d = %v, want published %v", i, all[i].Cost, want)
+				}
+			}
+			got, err := KBest(p.cost, p.rows, p.cols, len(tc.want))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(got) != len(tc.want) {
+				t.Fatalf("KBest(%s, %d) returned %d hypotheses", tc.name, len(tc.want), len(got))
+			}
+			for i, h := range got {
+				if !near(h.Cost, tc.want[i]) {
+					t.Errorf("KBest(%s)[%d].Cost = %v, want %v", tc.name, i, h.Cost, tc.want[i])
+				}
+			}
+			checkRanking(t, p.cost, p.rows, p.cols, got)
+		})
+	}
+}
+
+// TestKBestTraceA1 follows the partition trace of CHECK-VALUES §5.2 for A1:
+// the second and third hypotheses are the two assignments of cost 16
+// ({(0,1),(1,2),(2,0)} and {(0,2),(1,0),(2,1)}), the fourth is
+// {(0,1),(1,0),(2,2)} at 17, and all 3! = 6 permutations appear.
+func TestKBestTraceA1(t *testing.T) {
+	got, err := KBest(published[0].cost, 3, 3, 10)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != 6 {
+		t.Fatalf("KBest(A1, 10) returned %d hypotheses, want all 6", len(got))
+	}
+	key := func(h Hypothesis) string { return fmt.Sprint(h.RowToCol) }
+	if key(got[0]) != "[0 2 1]" || key(got[3]) != "[1 0 2]" {
+		t.Errorf("ranks 1 and 4 = %v, %v, want [0 2 1], [1 0 2]", got[0].RowToCol, got[3].RowToCol)
+	}
+	pair := map[string]bool{key(got[1]): true, key(got[2]): true}
+	if !pair["[1 2 0]"] || !pair["[2 0 1]"] {
+		t.Errorf("ranks 2 and 3 = %v, %v, want [1 2 0] and [2 0 1]", got[1].RowToCol, got[2].RowToCol)
+	}
+}
+
+// checkRanking verifies what any ranking must satisfy: non-decreasing cost,
+// each cost equal to its recomputed sum, each assignment feasible and no
+// assignment repeated.
+func checkRanking(t *testing.T, cost []float64, rows, cols int, hs []Hypothesis) {
+	t.Helper()
+	seen := map[string]bool{}
+	for i, h := range hs {
+		if msg := feasibleErr(cost, rows, cols, h.RowToCol); msg != "" {
+			t.Fatalf("hypothesis %d %v: %s", i, h.RowToCol, msg)
+		}
+		if s := recompute(cost, cols, h.RowToCol); !near(s, h.Cost) {
+			t.Fatalf("hypothesis %d cost %v, its entries sum to %v", i, h.Cost, s)
+		}
+		if i > 0 && h.Cost < hs[i-1].Cost-1e-9*(1+math.Abs(h.Cost)) {
+			t.Fatalf("hypothesis %d cost %v below hypothesis %d cost %v", i, h.Cost, i-1, hs[i-1].Cost)
+		}
+		k := fmt.Sprint(h.RowToCol)
+		if seen[k] {
+			t.Fatalf("hypothesis %d %v repeated", i, h.RowToCol)
+		}
+		seen[k] = true
+	}
+}
+
+// TestKBestOracle ranks seeded random problems (square, wide, tall, with
+// ties and forbidden entries) and compares the costs with the sorted list of
+// all assignment costs from exhaustive enumeration.
+func TestKBestOracle(t *testing.T) {
+	rng := testRand(t, 5)
+	for trial := 0; trial < 1200; trial++ {
+		rows, cols := 1+rng.IntN(5), 1+rng.IntN(5)
+		if trial%7 == 0 {
+			rows, cols = 6, 1+rng.IntN(6)
+		}
+		c := randomMatrix(rng, rows, cols, trial%2 == 0, [...]float64{0, 0.25, 0.5}[trial%3])
+		all := enumerate(c, rows, cols)
+		k := 1 + rng.IntN(len(all)+3)
+		got, err := KBest(c, rows, cols, k)
+		if len(all) == 0 {
+			if !errors.Is(err, ErrInfeasible) || len(got) != 0 {
+				t.Fatalf("trial %d: KBest(infeasible %d×%d) = %v, %v, want ErrInfeasible", trial, rows, cols, got, err)
+			}
+			continue
+		}
+		if err != nil {
+			t.Fatalf("trial %d: KBest(%d×%d %v, %d): %v", trial, rows, cols, c, k, err)
+		}
+		want := min(k, len(all))
+		if len(got) != want {
+			t.Fatalf("trial %d: KBest(%d×%d %v, %d) returned %d hypotheses, want %d", trial, rows, cols, c, k, len(got), want)
+		}
+		for i, h := range got {
+			if !near(h.Cost, all[i].Cost) {
+				t.Fatalf("trial %d: KBest(%d×%d %v)[%d].Cost = %v, want %v", trial, rows, cols, c, i, h.Cost, all[i].Cost)
+			}
+		}
+		checkRanking(t, c, rows, cols, got)
+	}
+}
+
+// TestKBestFirstIsOptimum: on larger problems the first hypothesis equals
+// Solve's optimum and the ranking is well formed.
+func TestKBestFirstIsOptimum(t *testing.T) {
+	rng := testRand(t, 6)
+	for _, sh := range [][2]int{{12, 12}, {8, 15}, {15, 8}} {
+		c := randomMatrix(rng, sh[0], sh[1], true, 0.3)
+		_, opt, err := Solve(c, sh[0], sh[1])
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := KBest(c, sh[0], sh[1], 60)
+		if err != nil || len(got) != 60 || !near(got[0].Cost, opt) {
+			t.Fatalf("KBest(%v) = %d hypotheses, first %v, err %v; want 60, %v", sh, len(got), got[0].Cost, err, opt)
+		}
+		checkRanking(t, c, sh[0], sh[1], got)
+	}
+}
+
+func TestKBestEdges(t *testing.T) {
+	if got, err := KBest([]float64{1, 2, 3, 4}, 2, 2, 0); err != nil || got != nil {
+		t.Errorf("KBest(k=0) = %v, %v, want nil, nil", got, err)
+	}
+	if got, err := KBest(nil, 2, 0, 3); err != nil || len(got) != 1 || got[0].RowToCol[1] != -1 {
+		t.Errorf("KBest(2×0) = %v, %v, want the one empty assignment", got, err)
+	}
+	if _, err := KBest([]float64{1, math.NaN(), 3, 4}, 2, 2, 3); err == nil {
+		t.Errorf("KBest(NaN) succeeded, want an error")
+	}
+	if _, err := KBest([]float64{1, 2, 3}, 2, 2, 3); err == nil {
+		t.Errorf("KBest(short cost) succeeded, want an error")
+	}
+}
