@@ -70,6 +70,9 @@ type Suite struct {
 	Shard     *Shard     `json:"shard,omitempty"`
 	Status    Status     `json:"status"`
 	Scenarios []Scenario `json:"scenarios"`
+	// Notes are remarks about the suite as a whole that a reader must see,
+	// such as summaries Merge could not carry over from the shards.
+	Notes []string `json:"notes,omitempty"`
 }
 
 // Platform records where the result was produced; floating-point results can
@@ -112,7 +115,11 @@ type Scenario struct {
 	// and position metrics), in axis order.
 	Position []int  `json:"position"`
 	Status   Status `json:"status"`
-	Runs     []Run  `json:"runs"`
+	// RunsPlanned is the number of runs of the scenario in the whole suite
+	// (indices 0..RunsPlanned-1). A shard holds only some of them in Runs;
+	// Merge uses it to find runs that no shard produced. Zero means unknown.
+	RunsPlanned int   `json:"runs_planned,omitempty"`
+	Runs        []Run `json:"runs"`
 	// Metrics summarises the accuracy and consistency metrics over the runs.
 	Metrics *Metrics `json:"metrics,omitempty"`
 	// Gates are the statistical gates evaluated on the metrics.
@@ -134,6 +141,10 @@ type Run struct {
 	// Trace holds what the plots of this run need; it may be omitted for
 	// large suites.
 	Trace *Trace `json:"trace,omitempty"`
+	// Seconds is the wall-clock time the run took, zero when not measured.
+	// It is the only field that differs between identical runs; leave it
+	// zero where byte-identical results are wanted.
+	Seconds float64 `json:"seconds,omitempty"`
 }
 
 // Check is one comparison made on a run.

@@ -1,0 +1,513 @@
+package result
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strconv"
+	"strings"
+)
+
+// The strings that stand for non-finite values in the JSON file.
+const (
+	jsonNaN    = "NaN"
+	jsonPosInf = "Infinity"
+	jsonNegInf = "-Infinity"
+)
+
+// Marshal returns the JSON encoding of s described in the package
+// documentation: deterministic, indented, non-finite values as strings.
+func Marshal(s *Suite) ([]byte, error) {
+	if s == nil {
+		return nil, errors.New("result: Marshal of a nil Suite")
+	}
+	var b bytes.Buffer
+	if err := encodeValue(&b, reflect.ValueOf(s).Elem(), ""); err != nil {
+		return nil, err
+	}
+	b.WriteByte('\n')
+	return b.Bytes(), nil
+}
+
+// Unmarshal decodes a result file's bytes; name is used in error messages.
+func Unmarshal(name string, data []byte) (*Suite, error) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.UseNumber()
+	var tree any
+	if err := dec.Decode(&tree); err != nil {
+		return nil, syntaxError(name, data, err)
+	}
+	if _, err := dec.Token(); err != io.EOF {
+		line, col := position(data, dec.InputOffset())
+		return nil, fmt.Errorf("%s:%d:%d: unexpected data after the result object", name, line, col)
+	}
+	obj, ok := tree.(map[string]any)
+	if !ok {
+		return nil, fmt.Errorf("%s: expected a JSON object at the top, got %s", name, kindOf(tree))
+	}
+	rawVersion, ok := obj["version"]
+	if !ok {
+		return nil, fmt.Errorf("%s: version: missing; is this a trackgate result file?", name)
+	}
+	num, ok := rawVersion.(json.Number)
+	v, err := num.Int64()
+	if !ok || err != nil {
+		return nil, fmt.Errorf("%s: version: expected an integer, got %s", name, kindOf(rawVersion))
+	}
+	if v != Version {
+		return nil, fmt.Errorf("%s: version: written by result version %d; this trackgate reads version %d", name, v, Version)
+	}
+	s := new(Suite)
+	if err := decodeValue(reflect.ValueOf(s).Elem(), tree, ""); err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	return s, nil
+}
+
+// Write writes s to path atomically: the bytes go to a temporary file in the
+// same directory, which is synced and then renamed over path, so a reader
+// sees either the old file or the complete new one.
+func Write(path string, s *Suite) error {
+	data, err := Marshal(s)
+	if err != nil {
+		return err
+	}
+	return WriteFile(path, data)
+}
+
+// WriteFile writes data to path atomically (temporary file in the same
+// directory, fsync, rename). The file gets mode 0644.
+func WriteFile(path string, data []byte) (err error) {
+	dir := filepath.Dir(path)
+	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
+	if err != nil {
+		return fmt.Errorf("result: write %s: %w", path, err)
+	}
+	tmp := f.Name()
+	defer func() {
+		if err != nil {
+			f.Close()
+			os.Remove(tmp)
+		}
+	}()
+	if _, err = f.Write(data); err != nil {
+		return fmt.Errorf("result: write %s: %w", path, err)
+	}
+	if err = f.Chmod(0o644); err != nil {
+		return fmt.Errorf("result: write %s: %w", path, err)
+	}
+	if err = f.Sync(); err != nil {
+		return fmt.Errorf("result: write %s: sync: %w", path, err)
+	}
+	if err = f.Close(); err != nil {
+		return fmt.Errorf("result: write %s: %w", path, err)
+	}
+	if err = os.Rename(tmp, path); err != nil {
+		return fmt.Errorf("result: write %s: %w", path, err)
+	}
+	// Make the rename durable; a directory that cannot be synced (some
+	// file systems) is not an error.
+	if d, derr := os.Open(dir); derr == nil {
+		d.Sync()
+		d.Close()
+	}
+	return nil
+}
+
+// Read reads a result file written by Write.
+func Read(path string) (*Suite, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Unmarshal(path, data)
+}
+
+// syntaxError turns a json decoding error into one with a line and column.
+func syntaxError(name string, data []byte, err error) error {
+	var se *json.SyntaxError
+	if errors.As(err, &se) {
+		// Offset counts the byte that revealed the error; point at it.
+		off := se.Offset
+		if off > 0 {
+			off--
+		}
+		line, col := position(data, off)
+		return fmt.Errorf("%s:%d:%d: invalid JSON: %v", name, line, col, se)
+	}
+	if errors.Is(err, io.EOF) {
+		return fmt.Errorf("%s: empty file, expected a result object", name)
+	}
+	if errors.Is(err, io.ErrUnexpectedEOF) {
+		line, col := position(data, int64(len(data)))
+		return fmt.Errorf("%s:%d:%d: invalid JSON: file ends inside a value (truncated?)", name, line, col)
+	}
+	return fmt.Errorf("%s: invalid JSON: %v", name, err)
+}
+
+// position returns the 1-based line and column of byte offset off.
+func position(data []byte, off int64) (line, col int) {
+	if off > int64(len(data)) {
+		off = int64(len(data))
+	}
+	before := data[:off]
+	line = bytes.Count(before, []byte("\n")) + 1
+	col = int(off) - (bytes.LastIndexByte(before, '\n') + 1) + 1
+	return line, col
+}
+
+// field is one encoded struct member.
+type field struct {
+	index     int
+	name      string
+	omitEmpty bool
+}
+
+func fieldsOf(t reflect.Type) []field {
+	var fs []field
+	for i := 0; i < t.NumField(); i++ {
+		sf := t.Field(i)
+		if !sf.IsExported() {
+			continue
+		}
+		tag := sf.Tag.Get("json")
+		if tag == "-" {
+			continue
+		}
+		name, opts, _ := strings.Cut(tag, ",")
+		if name == "" {
+			name = sf.Name
+		}
+		fs = append(fs, field{index: i, name: name, omitEmpty: strings.Contains(","+opts+",", ",omitempty,")})
+	}
+	return fs
+}
+
+func isEmpty(v reflect.Value) bool {
+	switch v.Kind() {
+	case reflect.Slice, reflect.String, reflect.Map:
+		return v.Len() == 0
+	case reflect.Pointer, reflect.Interface:
+		return v.IsNil()
+	case reflect.Bool:
+		return !v.Bool()
+	case reflect.Int, reflect.Int64, reflect.Int32:
+		return v.Int() == 0
+	case reflect.Uint, reflect.Uint64, reflect.Uint32:
+		return v.Uint() == 0
+	case reflect.Float64, reflect.Float32:
+		return v.Float() == 0
+	}
+	return false
+}
+
+// appendFloat writes f as encoding/json would for finite values and as one
+// of the three strings otherwise.
+func appendFloat(b *bytes.Buffer, f float64) {
+	switch {
+	case math.IsNaN(f):
+		b.WriteString(`"` + jsonNaN + `"`)
+		return
+	case math.IsInf(f, 1):
+		b.WriteString(`"` + jsonPosInf + `"`)
+		return
+	case math.IsInf(f, -1):
+		b.WriteString(`"` + jsonNegInf + `"`)
+		return
+	}
+	format := byte('f')
+	if a := math.Abs(f); a != 0 && (a < 1e-6 || a >= 1e21) {
+		format = 'e'
+	}
+	buf := strconv.AppendFloat(nil, f, format, -1, 64)
+	if format == 'e' {
+		// Clean up e-09 to e-9, as encoding/json does.
+		if n := len(buf); n >= 4 && buf[n-4] == 'e' && buf[n-3] == '-' && buf[n-2] == '0' {
+			buf[n-2] = buf[n-1]
+			buf = buf[:n-1]
+		}
+	}
+	b.Write(buf)
+}
+
+func appendString(b *bytes.Buffer, s string) {
+	enc := json.NewEncoder(b)
+	enc.SetEscapeHTML(false)
+	enc.Encode(s) // cannot fail for a string
+	b.Truncate(b.Len() - 1)
+}
+
+func encodeValue(b *bytes.Buffer, v reflect.Value, indent string) error {
+	switch v.Kind() {
+	case reflect.Pointer:
+		if v.IsNil() {
+			b.WriteString("null")
+			return nil
+		}
+		return encodeValue(b, v.Elem(), indent)
+	case reflect.Struct:
+		fs := fieldsOf(v.Type())
+		// Structs of scalars (points, diffs, shards) stay on one line.
+		flat := isFlat(v.Type())
+		inner := indent + "  "
+		first := true
+		b.WriteByte('{')
+		for _, f := range fs {
+			fv := v.Field(f.index)
+			if f.omitEmpty && isEmpty(fv) {
+				continue
+			}
+			if !first {
+				b.WriteByte(',')
+				if flat {
+					b.WriteByte(' ')
+				}
+			}
+			first = false
+			if !flat {
+				b.WriteString("\n" + inner)
+			}
+			appendString(b, f.name)
+			b.WriteString(": ")
+			if err := encodeValue(b, fv, inner); err != nil {
+				return err
+			}
+		}
+		if !first && !flat {
+			b.WriteString("\n" + indent)
+		}
+		b.WriteByte('}')
+	case reflect.Slice, reflect.Array:
+		if v.Kind() == reflect.Slice && v.IsNil() {
+			b.WriteString("null")
+			return nil
+		}
+		if v.Len() == 0 {
+			b.WriteString("[]")
+			return nil
+		}
+		// Arrays of scalars stay on one line: they are short vectors.
+		if k := v.Type().Elem().Kind(); k != reflect.Struct && k != reflect.Pointer && k != reflect.Slice {
+			b.WriteByte('[')
+			for i := 0; i < v.Len(); i++ {
+				if i > 0 {
+					b.WriteString(", ")
+				}
+				if err := encodeValue(b, v.Index(i), indent); err != nil {
+					return err
+				}
+			}
+			b.WriteByte(']')
+			return nil
+		}
+		inner := indent + "  "
+		b.WriteByte('[')
+		for i := 0; i < v.Len(); i++ {
+			if i > 0 {
+				b.WriteByte(',')
+			}
+			b.WriteString("\n" + inner)
+			if err := encodeValue(b, v.Index(i), inner); err != nil {
+				return err
+			}
+		}
+		b.WriteString("\n" + indent + "]")
+	case reflect.String:
+		appendString(b, v.String())
+	case reflect.Int, reflect.Int64, reflect.Int32:
+		b.Write(strconv.AppendInt(nil, v.Int(), 10))
+	case reflect.Uint, reflect.Uint64, reflect.Uint32:
+		b.Write(strconv.AppendUint(nil, v.Uint(), 10))
+	case reflect.Float64, reflect.Float32:
+		appendFloat(b, v.Float())
+	case reflect.Bool:
+		b.WriteString(strconv.FormatBool(v.Bool()))
+	default:
+		return fmt.Errorf("result: cannot encode a %s", v.Type())
+	}
+	return nil
+}
+
+// isFlat reports whether every field of struct type t is a scalar or an
+// array of scalars (possibly behind a pointer).
+func isFlat(t reflect.Type) bool {
+	for i := 0; i < t.NumField(); i++ {
+		ft := t.Field(i).Type
+		if ft.Kind() == reflect.Pointer {
+			ft = ft.Elem()
+		}
+		if ft.Kind() == reflect.Array {
+			ft = ft.Elem()
+		}
+		switch ft.Kind() {
+		case reflect.Struct, reflect.Slice, reflect.Map, reflect.Interface, reflect.Pointer, reflect.Array:
+			return false
+		}
+	}
+	return true
+}
+
+func kindOf(x any) string {
+	switch x := x.(type) {
+	case nil:
+		return "null"
+	case bool:
+		return "boolean"
+	case json.Number:
+		return "number " + x.String()
+	case string:
+		if len(x) > 20 {
+			x = x[:20] + "..."
+		}
+		return "string " + strconv.Quote(x)
+	case []any:
+		return "array"
+	case map[string]any:
+		return "object"
+	}
+	return fmt.Sprintf("%T", x)
+}
+
+func join(path, name string) string {
+	if path == "" {
+		return name
+	}
+	return path + "." + name
+}
+
+// decodeValue stores the decoded JSON tree x into v; path names the member
+// in errors.
+func decodeValue(v reflect.Value, x any, path string) error {
+	if path == "" && v.Kind() != reflect.Struct {
+		path = "(top)"
+	}
+	switch v.Kind() {
+	case reflect.Pointer:
+		if x == nil {
+			v.SetZero()
+			return nil
+		}
+		p := reflect.New(v.Type().Elem())
+		if err := decodeValue(p.Elem(), x, path); err != nil {
+			return err
+		}
+		v.Set(p)
+	case reflect.Struct:
+		obj, ok := x.(map[string]any)
+		if !ok {
+			return fmt.Errorf("%s: expected an object, got %s", orTop(path), kindOf(x))
+		}
+		for _, f := range fieldsOf(v.Type()) {
+			m, ok := obj[f.name]
+			if !ok {
+				continue
+			}
+			if err := decodeValue(v.Field(f.index), m, join(path, f.name)); err != nil {
+				return err
+			}
+		}
+	case reflect.Slice:
+		if x == nil {
+			v.SetZero()
+			return nil
+		}
+		arr, ok := x.([]any)
+		if !ok {
+			return fmt.Errorf("%s: expected an array, got %s", path, kindOf(x))
+		}
+		s := reflect.MakeSlice(v.Type(), len(arr), len(arr))
+		for i, e := range arr {
+			if err := decodeValue(s.Index(i), e, fmt.Sprintf("%s[%d]", path, i)); err != nil {
+				return err
+			}
+		}
+		v.Set(s)
+	case reflect.Array:
+		arr, ok := x.([]any)
+		if !ok || len(arr) != v.Len() {
+			return fmt.Errorf("%s: expected an array of %d numbers, got %s", path, v.Len(), describeArray(x))
+		}
+		for i, e := range arr {
+			if err := decodeValue(v.Index(i), e, fmt.Sprintf("%s[%d]", path, i)); err != nil {
+				return err
+			}
+		}
+	case reflect.String:
+		s, ok := x.(string)
+		if !ok {
+			return fmt.Errorf("%s: expected a string, got %s", path, kindOf(x))
+		}
+		v.SetString(s)
+	case reflect.Int, reflect.Int64, reflect.Int32:
+		n, ok := x.(json.Number)
+		i, err := n.Int64()
+		if !ok || err != nil || v.OverflowInt(i) {
+			return fmt.Errorf("%s: expected an integer, got %s", path, kindOf(x))
+		}
+		v.SetInt(i)
+	case reflect.Uint, reflect.Uint64, reflect.Uint32:
+		n, ok := x.(json.Number)
+		var u uint64
+		var err error
+		if ok {
+			u, err = strconv.ParseUint(n.String(), 10, 64)
+		}
+		if !ok || err != nil || v.OverflowUint(u) {
+			return fmt.Errorf("%s: expected an unsigned integer, got %s", path, kindOf(x))
+		}
+		v.SetUint(u)
+	case reflect.Float64, reflect.Float32:
+		var f float64
+		switch x := x.(type) {
+		case json.Number:
+			var err error
+			f, err = strconv.ParseFloat(x.String(), 64)
+			if err != nil {
+				return fmt.Errorf("%s: number %s out of range", path, x)
+			}
+		case string:
+			switch x {
+			case jsonNaN:
+				f = math.NaN()
+			case jsonPosInf:
+				f = math.Inf(1)
+			case jsonNegInf:
+				f = math.Inf(-1)
+			default:
+				return fmt.Errorf("%s: expected a number or %q, %q, %q, got %s", path, jsonNaN, jsonPosInf, jsonNegInf, kindOf(x))
+			}
+		default:
+			return fmt.Errorf("%s: expected a number, got %s", path, kindOf(x))
+		}
+		v.SetFloat(f)
+	case reflect.Bool:
+		bv, ok := x.(bool)
+		if !ok {
+			return fmt.Errorf("%s: expected true or false, got %s", path, kindOf(x))
+		}
+		v.SetBool(bv)
+	default:
+		return fmt.Errorf("%s: cannot decode into %s", path, v.Type())
+	}
+	return nil
+}
+
+func orTop(path string) string {
+	if path == "" {
+		return "(top)"
+	}
+	return path
+}
+
+func describeArray(x any) string {
+	if arr, ok := x.([]any); ok {
+		return fmt.Sprintf("an array of %d", len(arr))
+	}
+	return kindOf(x)
+}
