@@ -28,6 +28,10 @@ type Workspace struct {
 	transposed bool
 	maximise   bool
 	valid      bool
+
+	// NoInit skips the column reduction that starts square problems.
+	// The optimum is the same; it exists to measure the reduction.
+	NoInit bool
 }
 
 // Solve minimises Σ cost[i*cols+rowToCol[i]] over assignments. cost is
@@ -66,7 +70,8 @@ func Solve(cost []float64, rows, cols int) (rowToCol []int, total float64, err e
 //	cost[i][j] = rowDual[i] + colDual[j]   on every assigned pair,
 //	Σ rowDual + Σ colDual = total,
 //
-// and the duals of the longer side are ≤ 0 and exactly 0 where unassigned.
+// and, for a rectangular matrix, the duals of the longer side are ≤ 0 and
+// exactly 0 where unassigned.
 // For SolveMax every inequality is reversed (≤, duals of the longer side
 // ≥ 0). The slices belong to the Workspace and are overwritten by its next
 // call. Both are nil when the last call failed or there was none.
@@ -184,20 +189,29 @@ func (w *Workspace) solve(cost []float64, rows, cols int, rowToCol []int, maximi
 			}
 		}
 	}
-	m := math.Inf(1)
-	for _, x := range c {
-		if x < m {
-			m = x
+	if nr == nc && !w.NoInit {
+		w.reduceColumns(c, nc)
+	} else if !w.NoInit {
+		w.reduceRows(c, nr, nc)
+	} else {
+		m := math.Inf(1)
+		for _, x := range c {
+			if x < m {
+				m = x
+			}
+		}
+		if math.IsInf(m, 1) {
+			return 0, ErrInfeasible
+		}
+		u := w.u[:nr]
+		for i := range u {
+			u[i] = m
 		}
 	}
-	if math.IsInf(m, 1) {
-		return 0, ErrInfeasible
-	}
-	u := w.u[:nr]
-	for i := range u {
-		u[i] = m
-	}
 	for cur := 0; cur < nr; cur++ {
+		if w.col4row[cur] >= 0 {
+			continue
+		}
 		if !w.augment(c, nc, cur) {
 			return 0, ErrInfeasible
 		}
@@ -323,4 +337,71 @@ func (w *Workspace) augment(c []float64, nc, cur int) bool {
 		}
 	}
 	return true
+}
+
+// reduceColumns starts a square n×n problem with the column reduction and
+// reduction transfer of Jonker and Volgenant (1987, Section 4): each column
+// dual is its column minimum, the row holding that minimum takes the column
+// when still free, and each row so assigned then moves its slack to its row
+// dual, lowering its column's dual. Reduced costs stay non-negative and the
+// assigned pairs are tight, which is the precondition of augment. Rows left
+// free are assigned by augment. A column without a finite entry gets dual 0.
+func (w *Workspace) reduceColumns(c []float64, n int) {
+	inf := math.Inf(1)
+	v := w.v[:n]
+	arg := w.path[:n] // scratch: row holding each column minimum
+	for j := range v {
+		v[j] = inf
+		arg[j] = -1
+	}
+	for i := 0; i < n; i++ {
+		row := c[i*n : i*n+n]
+		for j, x := range row {
+			if x < v[j] {
+				v[j] = x
+				arg[j] = i
+			}
+		}
+	}
+	col4row, row4col := w.col4row[:n], w.row4col[:n]
+	for j := n - 1; j >= 0; j-- {
+		i := arg[j]
+		if i < 0 {
+			v[j] = 0
+			continue
+		}
+		if col4row[i] < 0 {
+			col4row[i] = j
+			row4col[j] = i
+		}
+	}
+}
+
+// reduceRows starts a wide nr×nc problem (nr < nc): each row dual is its row
+// minimum and the row takes that column when it is still free. Column duals
+// stay 0, so the sign condition of the rectangular dual (v_j ≤ 0, and 0 on
+// unassigned columns) holds from the start. A row without a finite entry is
+// left to augment, which reports the problem infeasible.
+func (w *Workspace) reduceRows(c []float64, nr, nc int) {
+	inf := math.Inf(1)
+	u := w.u[:nr]
+	col4row, row4col := w.col4row[:nr], w.row4col[:nc]
+	for i := range u {
+		row := c[i*nc : i*nc+nc]
+		best, arg := inf, -1
+		for j, x := range row {
+			if x < best {
+				best, arg = x, j
+			}
+		}
+		if arg < 0 {
+			u[i] = 0
+			continue
+		}
+		u[i] = best
+		if row4col[arg] < 0 {
+			col4row[i] = arg
+			row4col[arg] = i
+		}
+	}
 }
