@@ -1,0 +1,367 @@
+package tracker
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+
+	"trackgate/harness/mot"
+	"trackgate/reference/assign"
+	"trackgate/reference/kalman"
+)
+
+// cluster is one connected component of the gating graph.
+type cluster struct {
+	rows []int // rows of the scan's cost matrix, increasing
+	cols []int // detection columns gated by any of the rows, increasing
+	// hyps are the cluster's k best hypotheses; RowToCol indexes the
+	// cluster's own matrix: j < len(cols) is cols[j], otherwise a miss.
+	hyps []assign.Hypothesis
+	// count bounds the number of association events of the cluster.
+	count float64
+	// logZ is ln Σ exp(−(cost − best)) over all its events (exact) or an
+	// upper bound (not exact).
+	logZ  float64
+	exact bool
+}
+
+// associate gates, clusters, ranks and updates one scan for the live
+// objects ids with predicted states (xs, ps).
+func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.Scan) (Detail, error) {
+	n, m := e.f.Dims()
+	dets := scan.Detections
+	detIDs := make([]int, len(dets))
+	seen := make(map[int]bool, len(dets))
+	for j, d := range dets {
+		if d.ID < 0 || seen[d.ID] {
+			return Detail{}, fmt.Errorf("tracker: step %d: detection %d: id %d is negative or repeated, want a unique id ≥ 0", step, j, d.ID)
+		}
+		seen[d.ID] = true
+		if len(d.Z) != m {
+			return Detail{}, fmt.Errorf("tracker: step %d: detection %d: measurement of length %d, want %d", step, d.ID, len(d.Z), m)
+		}
+		for i, v := range d.Z {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return Detail{}, fmt.Errorf("tracker: step %d: detection %d: z[%d] is %g, want a finite number", step, d.ID, i, v)
+			}
+		}
+		detIDs[j] = d.ID
+	}
+	r := len(ids)
+	cm := CostMatrix{
+		Objects: append([]string(nil), ids...), Detections: detIDs,
+		Gated: make([][]Entry, r), Miss: make([]float64, r),
+	}
+	projs := make([]kalman.Projection, r)
+
+	// Detections sorted by their first coordinate: a detection outside
+	// |z₀ − ẑ₀| ≤ √(γ S₀₀) cannot be in the gate, since d² ≥ ν₀²/S₀₀.
+	order := make([]int, len(dets))
+	for j := range order {
+		order[j] = j
+	}
+	sort.SliceStable(order, func(a, b int) bool { return dets[order[a]].Z[0] < dets[order[b]].Z[0] })
+	for i := 0; i < r; i++ {
+		if err := e.f.ProjectTo(&projs[i], xs[i], ps[i]); err != nil {
+			return Detail{}, fmt.Errorf("tracker: step %d: object %q: %w", step, ids[i], err)
+		}
+		cm.Miss[i] = e.missCost
+		pr := &projs[i]
+		half := math.Sqrt(e.gamma * pr.S[0])
+		lo, hi := pr.Zhat[0]-half, pr.Zhat[0]+half
+		a := sort.Search(len(order), func(q int) bool { return dets[order[q]].Z[0] >= lo })
+		var g []Entry
+		for q := a; q < len(order) && dets[order[q]].Z[0] <= hi; q++ {
+			j := order[q]
+			d2 := pr.Distance2(dets[j].Z)
+			if d2 <= e.gamma {
+				g = append(g, Entry{Col: j, Cost: -e.logPD - pr.LogLikelihood(d2) + e.logLambda})
+			}
+		}
+		sort.Slice(g, func(a, b int) bool { return g[a].Col < g[b].Col })
+		cm.Gated[i] = g
+	}
+
+	clusters := split(&cm)
+	d := Detail{Step: step, Costs: cm, Clusters: len(clusters)}
+	rowToDet := make([]int, r) // best association per row: column or -1
+	for i := range rowToDet {
+		rowToDet[i] = -1
+	}
+	coasting := make([]bool, r)
+	var feasible []*cluster
+	for ci := range clusters {
+		c := &clusters[ci]
+		if err := e.rank(&cm, c); err != nil {
+			if errors.Is(err, assign.ErrInfeasible) {
+				for _, row := range c.rows {
+					coasting[row] = true
+					d.Coasting = append(d.Coasting, ids[row])
+				}
+				continue
+			}
+			return Detail{}, fmt.Errorf("tracker: step %d: %w", step, err)
+		}
+		feasible = append(feasible, c)
+		for a, row := range c.rows {
+			if col := c.hyps[0].RowToCol[a]; col < len(c.cols) {
+				rowToDet[row] = c.cols[col]
+			}
+		}
+		d.Cost += c.hyps[0].Cost
+	}
+	e.hypotheses(&d, feasible, rowToDet, detIDs, r)
+
+	// Updates with the best hypothesis.
+	d.Objects = make([]ObjectDetail, r)
+	for i := 0; i < r; i++ {
+		od := ObjectDetail{
+			Object:    ids[i],
+			PredMean:  append([]float64(nil), xs[i]...),
+			PredCov:   mot.Mat{Rows: n, Cols: n, Data: append([]float64(nil), ps[i]...)},
+			Detection: mot.NoDetection, NIS: math.NaN(), Coasting: coasting[i],
+			Mean: append([]float64(nil), xs[i]...),
+			Cov:  mot.Mat{Rows: n, Cols: n, Data: append([]float64(nil), ps[i]...)},
+		}
+		if j := rowToDet[i]; j >= 0 {
+			res := e.f.UpdateTo(od.Mean, od.Cov.Data, xs[i], ps[i], &projs[i], dets[j].Z)
+			od.Detection = dets[j].ID
+			od.NIS = res.NIS
+		}
+		d.Objects[i] = od
+	}
+	return d, nil
+}
+
+// split returns the connected components of the gating graph of cm, in
+// order of their first row.
+func split(cm *CostMatrix) []cluster {
+	r := len(cm.Objects)
+	parent := make([]int, r)
+	for i := range parent {
+		parent[i] = i
+	}
+	var find func(int) int
+	find = func(i int) int {
+		for parent[i] != i {
+			parent[i] = parent[parent[i]]
+			i = parent[i]
+		}
+		return i
+	}
+	owner := make([]int, len(cm.Detections))
+	for j := range owner {
+		owner[j] = -1
+	}
+	for i := 0; i < r; i++ {
+		for _, e := range cm.Gated[i] {
+			if o := owner[e.Col]; o < 0 {
+				owner[e.Col] = i
+			} else if a, b := find(o), find(i); a != b {
+				if a < b {
+					parent[b] = a
+				} else {
+					parent[a] = b
+				}
+			}
+		}
+	}
+	index := make(map[int]int)
+	var out []cluster
+	for i := 0; i < r; i++ {
+		root := find(i)
+		ci, ok := index[root]
+		if !ok {
+			ci = len(out)
+			index[root] = ci
+			out = append(out, cluster{})
+		}
+		out[ci].rows = append(out[ci].rows, i)
+	}
+	for j, o := range owner {
+		if o >= 0 {
+			ci := index[find(o)]
+			out[ci].cols = append(out[ci].cols, j)
+		}
+	}
+	return out
+}
+
+// rank fills c.hyps, c.count, c.logZ and c.exact.
+func (e *engine) rank(cm *CostMatrix, c *cluster) error {
+	nr, nd := len(c.rows), len(c.cols)
+	cols := nd + nr
+	local := make(map[int]int, nd)
+	for a, j := range c.cols {
+		local[j] = a
+	}
+	cost := make([]float64, nr*cols)
+	for i := range cost {
+		cost[i] = math.Inf(1)
+	}
+	missOK := !math.IsInf(e.missCost, 1)
+	c.count = 1
+	for a, row := range c.rows {
+		for _, en := range cm.Gated[row] {
+			cost[a*cols+local[en.Col]] = en.Cost
+		}
+		cost[a*cols+nd+a] = cm.Miss[row]
+		choices := float64(len(cm.Gated[row]))
+		if missOK {
+			choices++
+		}
+		c.count *= choices
+	}
+	// At least two, so that the margin is known even when k = 1, and one
+	// more than needed, so that a short list proves itself complete.
+	kr := max(e.k, 2) + 1
+	hyps, err := assign.KBest(cost, nr, cols, kr)
+	if err != nil {
+		return err
+	}
+	if len(hyps) == 0 {
+		return assign.ErrInfeasible
+	}
+	c.hyps = hyps
+	best := hyps[0].Cost
+	switch {
+	case len(hyps) < kr:
+		// Murty stopped early: the list is every feasible event.
+		c.logZ, c.exact = logSumExp(hyps, best), true
+	case e.enumLimit > 0 && c.count <= float64(e.enumLimit):
+		c.logZ, c.exact = enumerate(cost, nr, nd, best), true
+	default:
+		z := math.Exp(logSumExp(hyps, best))
+		last := hyps[len(hyps)-1].Cost - best
+		z += math.Max(0, c.count-float64(len(hyps))) * math.Exp(-last)
+		c.logZ = math.Log(z)
+	}
+	return nil
+}
+
+// logSumExp returns ln Σ exp(−(h.Cost − best)).
+func logSumExp(hyps []assign.Hypothesis, best float64) float64 {
+	var s float64
+	for _, h := range hyps {
+		s += math.Exp(-(h.Cost - best))
+	}
+	return math.Log(s)
+}
+
+// enumerate returns ln Σ exp(−(cost − best)) over every feasible event of
+// the nr × (nd + nr) augmented matrix, by depth-first search.
+func enumerate(cost []float64, nr, nd int, best float64) float64 {
+	cols := nd + nr
+	used := make([]bool, nd)
+	var s float64
+	var walk func(row int, acc float64)
+	walk = func(row int, acc float64) {
+		if row == nr {
+			s += math.Exp(-(acc - best))
+			return
+		}
+		for j := 0; j < nd; j++ {
+			if c := cost[row*cols+j]; !used[j] && !math.IsInf(c, 1) {
+				used[j] = true
+				walk(row+1, acc+c)
+				used[j] = false
+			}
+		}
+		if c := cost[row*cols+nd+row]; !math.IsInf(c, 1) {
+			walk(row+1, acc+c)
+		}
+	}
+	walk(0, 0)
+	return math.Log(s)
+}
+
+// pick chooses rank Rank of cluster Cluster in a combined hypothesis.
+type pick struct{ cluster, rank int }
+
+type combo struct {
+	delta float64
+	picks []pick // clusters not at their best, in cluster order
+}
+
+// hypotheses combines the clusters' ranked lists into the scan's k best and
+// fills the probabilities, margin and covered mass of d.
+func (e *engine) hypotheses(d *Detail, cl []*cluster, rowToDet, detIDs []int, r int) {
+	list := []combo{{}}
+	type cand struct {
+		delta      float64
+		from, rank int
+	}
+	var cands []cand
+	for ci, c := range cl {
+		if len(c.hyps) < 2 {
+			continue
+		}
+		cands = cands[:0]
+		for gi, g := range list {
+			for rk, h := range c.hyps {
+				cands = append(cands, cand{g.delta + (h.Cost - c.hyps[0].Cost), gi, rk})
+			}
+		}
+		sort.SliceStable(cands, func(a, b int) bool { return cands[a].delta < cands[b].delta })
+		if len(cands) > e.k {
+			cands = cands[:e.k]
+		}
+		next := make([]combo, len(cands))
+		for q, cd := range cands {
+			p := list[cd.from].picks
+			if cd.rank > 0 {
+				p = append(append([]pick(nil), p...), pick{ci, cd.rank})
+			}
+			next[q] = combo{delta: cd.delta, picks: p}
+		}
+		list = next
+	}
+
+	exhaustive := true
+	var logZ float64
+	for _, c := range cl {
+		exhaustive = exhaustive && c.exact
+		logZ += c.logZ
+	}
+	var listed float64
+	for _, g := range list {
+		listed += math.Exp(-g.delta)
+	}
+	norm := logZ
+	if !exhaustive {
+		norm = math.Log(listed)
+	}
+	d.Hypotheses = make([]Hypothesis, len(list))
+	for q, g := range list {
+		assoc := make([]int, r)
+		for i, j := range rowToDet {
+			assoc[i] = mot.NoDetection
+			if j >= 0 {
+				assoc[i] = detIDs[j]
+			}
+		}
+		for _, p := range g.picks {
+			c := cl[p.cluster]
+			for a, row := range c.rows {
+				assoc[row] = mot.NoDetection
+				if col := c.hyps[p.rank].RowToCol[a]; col < len(c.cols) {
+					assoc[row] = detIDs[c.cols[col]]
+				}
+			}
+		}
+		prob := math.Exp(-g.delta - norm)
+		d.Hypotheses[q] = Hypothesis{Cost: d.Cost + g.delta, Prob: prob, Assoc: assoc}
+	}
+	d.BestProb = d.Hypotheses[0].Prob
+	d.Exhaustive = exhaustive
+	// logZ is exact when exhaustive and an upper bound otherwise.
+	d.CoveredMass = math.Min(1, math.Exp(math.Log(listed)-logZ))
+	// The second best differs from the best in exactly one cluster.
+	d.Margin = math.Inf(1)
+	for _, c := range cl {
+		if len(c.hyps) > 1 {
+			d.Margin = math.Min(d.Margin, c.hyps[1].Cost-c.hyps[0].Cost)
+		}
+	}
+}

@@ -1,0 +1,33 @@
+package tracker
+
+import (
+	"fmt"
+
+	"trackgate/harness/mot"
+)
+
+// Expected is the reference run over one simulated run: per step the frame
+// the reference reports and the detail behind it.
+type Expected struct {
+	// Run and Seed identify the simulated run.
+	Run    int
+	Seed   uint64
+	Frames []mot.Frame
+	Steps  []Detail
+}
+
+// RunAll runs the reference tracker of cfg over every scan of run.
+func RunAll(cfg Config, run mot.Run) (Expected, error) {
+	t := New(cfg)
+	ex := Expected{Run: run.Index, Seed: run.Seed,
+		Frames: make([]mot.Frame, 0, len(run.Scans)), Steps: make([]Detail, 0, len(run.Scans))}
+	for _, scan := range run.Scans {
+		fr, d, err := t.Step(scan)
+		if err != nil {
+			return Expected{}, fmt.Errorf("run %d: %w", run.Index, err)
+		}
+		ex.Frames = append(ex.Frames, fr)
+		ex.Steps = append(ex.Steps, d)
+	}
+	return ex, nil
+}
