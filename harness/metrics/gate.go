@@ -11,6 +11,9 @@ import (
 type Verdict struct {
 	// Gate names the gate, as given by the caller.
 	Gate string
+	// Test names the decision procedure: "absolute", "paired t" or
+	// "signed rank".
+	Test string
 	// Estimate is the judged quantity: the value for an absolute gate, the
 	// mean worsening d̄ for a paired gate.
 	Estimate float64
@@ -19,6 +22,10 @@ type Verdict struct {
 	Lo, Hi float64
 	// Limit is the threshold the decision compared against.
 	Limit float64
+	// PValue is, for the statistical gates, the one-sided p-value of the
+	// hypothesis that the candidate is no worse than max(0, MinEffect);
+	// absolute gates leave it 0.
+	PValue float64
 	// Pass is the decision.
 	Pass bool
 	// Reason says in one sentence why.
@@ -28,7 +35,7 @@ type Verdict struct {
 // AtMost is the absolute gate value ≤ limit (for example mean GOSPA ≤ 4 m).
 // A NaN value fails.
 func AtMost(gate string, value, limit float64) Verdict {
-	v := Verdict{Gate: gate, Estimate: value, Lo: value, Hi: value, Limit: limit}
+	v := Verdict{Gate: gate, Test: "absolute", Estimate: value, Lo: value, Hi: value, Limit: limit}
 	v.Pass = value <= limit
 	if v.Pass {
 		v.Reason = fmt.Sprintf("%g is at most the limit %g", value, limit)
@@ -41,7 +48,7 @@ func AtMost(gate string, value, limit float64) Verdict {
 // AtLeast is the absolute gate value ≥ limit (for example the fraction of
 // steps whose NEES lies in its interval ≥ 0.9). A NaN value fails.
 func AtLeast(gate string, value, limit float64) Verdict {
-	v := Verdict{Gate: gate, Estimate: value, Lo: value, Hi: value, Limit: limit}
+	v := Verdict{Gate: gate, Test: "absolute", Estimate: value, Lo: value, Hi: value, Limit: limit}
 	v.Pass = value >= limit
 	if v.Pass {
 		v.Reason = fmt.Sprintf("%g is at least the limit %g", value, limit)
@@ -56,7 +63,7 @@ func AtLeast(gate string, value, limit float64) Verdict {
 // steps". A check with no judged step fails.
 func ConsistentSteps(gate string, c Consistency, minInside float64) Verdict {
 	if c.Judged == 0 {
-		return Verdict{Gate: gate, Limit: minInside, Reason: "no step had a value to judge"}
+		return Verdict{Gate: gate, Test: "absolute", Limit: minInside, Reason: "no step had a value to judge"}
 	}
 	v := AtLeast(gate, c.InsideFraction, minInside)
 	v.Reason = fmt.Sprintf("%d of %d steps (%.4g) inside the %g interval; need at least %g",
@@ -105,17 +112,25 @@ func (g Paired) Compare(gate string, candidate, baseline []float64) (Verdict, er
 	n := float64(len(d))
 	mean, sd := meanSD(d)
 	half := 0.0
+	shift := math.Max(0, g.MinEffect)
+	v := Verdict{Gate: gate, Test: "paired t", Estimate: mean, Limit: g.MinEffect}
 	if sd > 0 {
-		t := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: n - 1}.Quantile((1 + conf) / 2)
-		half = t * sd / math.Sqrt(n)
+		dist := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: n - 1}
+		se := sd / math.Sqrt(n)
+		half = dist.Quantile((1+conf)/2) * se
+		v.PValue = dist.Survival((mean - shift) / se)
+	} else if mean > shift {
+		v.PValue = 0
+	} else {
+		v.PValue = 1
 	}
-	v := Verdict{Gate: gate, Estimate: mean, Lo: mean - half, Hi: mean + half, Limit: g.MinEffect}
+	v.Lo, v.Hi = mean-half, mean+half
 	worse := "higher"
 	if g.HigherIsBetter {
 		worse = "lower"
 	}
 	switch {
-	case v.Lo > math.Max(0, g.MinEffect):
+	case v.Lo > shift:
 		v.Reason = fmt.Sprintf("candidate is worse (%s) by %.4g on average over %d runs; the %g interval [%.4g, %.4g] lies above the minimum effect %g",
 			worse, mean, len(d), conf, v.Lo, v.Hi, g.MinEffect)
 	case v.Lo > 0:

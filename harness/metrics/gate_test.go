@@ -51,6 +51,11 @@ func TestPairedStudentSleep(t *testing.T) {
 	if v.Pass {
 		t.Errorf("candidate 1.58 h worse with interval above 0 passed: %s", v.Reason)
 	}
+	// Two-sided p-value 0.002833 for t = 4.062 with 9 degrees of freedom
+	// (from memory, as above); the gate reports the one-sided half.
+	if math.Abs(2*v.PValue-0.002833) > 5e-7 || v.Test != "paired t" {
+		t.Errorf("PValue = %.7f (%s), want 0.002833/2 from the paired t test", v.PValue, v.Test)
+	}
 	// A minimum effect of 1 h lies above the lower bound 0.70: pass.
 	v, _ = Paired{MinEffect: 1}.Compare("sleep", drug2, drug1)
 	if !v.Pass || !strings.Contains(v.Reason, "minimum effect") {
