@@ -1,0 +1,154 @@
+package sim
+
+import (
+	"bytes"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/google/go-cmp/cmp"
+
+	"trackgate/harness/mot"
+)
+
+func TestReadRoundTrip(t *testing.T) {
+	spec := quayScene()
+	for r := range 3 {
+		run := Run(spec, r)
+		data := render(t, spec, run)
+		rec, err := Read(bytes.NewReader(data), "run.jsonl")
+		if err != nil {
+			t.Fatalf("Read: %v", err)
+		}
+		want := Record{Scenario: spec.Name, Hash: spec.Hash, Run: run}
+		if diff := cmp.Diff(want, rec); diff != "" {
+			t.Errorf("run %d: Read(Write(run)) (-want +got):\n%s", r, diff)
+		}
+	}
+}
+
+// TestWriteFormat checks the layout by hand-built input: key order, the
+// number format of encoding/json (shortest round trip, exponent outside
+// [1e-6, 1e21)), empty lists as [] and clutter as "from":"".
+func TestWriteFormat(t *testing.T) {
+	rec := Record{Scenario: "dock", Hash: "ab", Run: mot.Run{Index: 2, Seed: 18446744073709551615,
+		Scans: []mot.Scan{
+			{Step: 0, Time: 0, Detections: []mot.Detection{{ID: 0, Z: []float64{0.1, 1e21}}, {ID: 1, Z: []float64{-2.5e-7, 100}}}},
+			{Step: 1, Time: 0.25},
+		},
+		Truth: []mot.Truth{
+			{Step: 0, Objects: []mot.TruthState{{Object: "skiff", X: []float64{1, math.Copysign(0, -1)}}}, Origins: []mot.Origin{{Detection: 0, Object: "skiff"}, {Detection: 1}}},
+			{Step: 1},
+		},
+	}}
+	var b bytes.Buffer
+	if err := Write(&b, rec); err != nil {
+		t.Fatal(err)
+	}
+	want := `{"kind":"trackgate-simulation","version":1,"scenario":"dock","hash":"ab","run":2,"seed":18446744073709551615,"steps":2}
+{"step":0,"time":0,"detections":[{"id":0,"z":[0.1,1e+21]},{"id":1,"z":[-2.5e-7,100]}],"objects":[{"object":"skiff","x":[1,-0]}],"sources":[{"detection":0,"from":"skiff"},{"detection":1,"from":""}]}
+{"step":1,"time":0.25,"detections":[],"objects":[],"sources":[]}
+`
+	if diff := cmp.Diff(want, b.String()); diff != "" {
+		t.Errorf("Write (-want +got):\n%s", diff)
+	}
+}
+
+func TestWriteRejectsNonFinite(t *testing.T) {
+	rec := Record{Run: mot.Run{
+		Scans: []mot.Scan{{Step: 0, Detections: []mot.Detection{{ID: 0, Z: []float64{math.Inf(1)}}}}},
+		Truth: []mot.Truth{{Step: 0, Origins: []mot.Origin{{Detection: 0}}}},
+	}}
+	err := Write(&bytes.Buffer{}, rec)
+	if err == nil || !strings.Contains(err.Error(), "step 0: detection 0: z: [0]: expected a finite number") {
+		t.Errorf("Write error = %v, want one naming step 0, detection 0, z[0]", err)
+	}
+}
+
+func TestReadErrors(t *testing.T) {
+	const head = `{"kind":"trackgate-simulation","version":1,"scenario":"s","hash":"h","run":0,"seed":1,"steps":1}` + "\n"
+	tests := []struct {
+		name, in, want string
+	}{
+		{"empty", "", "f.jsonl:1: expected a header line"},
+		{"not json", "hello\n", "f.jsonl:1: header: invalid character"},
+		{"wrong kind", `{"kind":"x","version":1}` + "\n", `f.jsonl:1: header: kind: expected "trackgate-simulation"`},
+		{"future version", `{"kind":"trackgate-simulation","version":2}` + "\n", "f.jsonl:1: header: version: expected 1, got 2"},
+		{"missing seed", `{"kind":"trackgate-simulation","version":1,"scenario":"s","hash":"h","run":0,"steps":1}` + "\n", `f.jsonl:1: header: missing "seed"`},
+		{"unknown key", `{"kind":"trackgate-simulation","version":1,"colour":1}` + "\n", `f.jsonl:1: header: json: unknown field "colour"`},
+		{"cut short", head, "f.jsonl:1: expected 1 steps as the header says, got 0"},
+		{"extra step", head + `{"step":0,"time":0,"detections":[],"objects":[],"sources":[]}` + "\n{}\n", "f.jsonl:3: expected the end of the file after 1 steps"},
+		{"wrong step", head + `{"step":3,"time":0,"detections":[],"objects":[],"sources":[]}` + "\n", "f.jsonl:2: step: expected 0, got 3"},
+		{"missing time", head + `{"step":0,"detections":[],"objects":[],"sources":[]}` + "\n", `f.jsonl:2: step 0: missing "time"`},
+		{"null detections", head + `{"step":0,"time":0,"detections":null,"objects":[],"sources":[]}` + "\n", `f.jsonl:2: step 0: missing or null "detections"`},
+		{"negative id", head + `{"step":0,"time":0,"detections":[{"id":-1,"z":[1]}],"objects":[],"sources":[]}` + "\n", "f.jsonl:2: step 0: detections[0].id: expected a non-negative id, got -1"},
+		{"duplicate id", head + `{"step":0,"time":0,"detections":[{"id":4,"z":[1]},{"id":4,"z":[2]}],"objects":[],"sources":[]}` + "\n", "detections[1].id: expected an id unique in the run"},
+		{"ragged z", head + `{"step":0,"time":0,"detections":[{"id":0,"z":[1]},{"id":1,"z":[2,3]}],"objects":[],"sources":[]}` + "\n", "f.jsonl:2: step 0: detections[1].z: expected 1 values"},
+		{"no source", head + `{"step":0,"time":0,"detections":[{"id":0,"z":[1]}],"objects":[],"sources":[]}` + "\n", "f.jsonl:2: step 0: sources: expected one per detection (1), got 0"},
+		{"unknown source", head + `{"step":0,"time":0,"detections":[],"objects":[],"sources":[{"detection":9,"from":""}]}` + "\n", "sources[0].detection: expected the id of a detection of this step, got 9"},
+		{"two sources", head + `{"step":0,"time":0,"detections":[{"id":0,"z":[1]}],"objects":[],"sources":[{"detection":0,"from":""},{"detection":0,"from":"a"}]}` + "\n", "detection 0 has two sources"},
+		{"fractional id", head + `{"step":0,"time":0,"detections":[{"id":0.5,"z":[1]}],"objects":[],"sources":[]}` + "\n", "f.jsonl:2: step 0: json: cannot unmarshal number 0.5"},
+		{"trailing", head + `{"step":0,"time":0,"detections":[],"objects":[],"sources":[]} 7` + "\n", "f.jsonl:2: step 0: expected the end of the line"},
+		{"blank line", head + "\n", "f.jsonl:2: step 0: expected a JSON object, got an empty line"},
+		{"duplicate object", head + `{"step":0,"time":0,"detections":[],"objects":[{"object":"a","x":[1]},{"object":"a","x":[1]}],"sources":[]}` + "\n", `objects[1].object: "a" appears twice`},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			_, err := Read(strings.NewReader(tt.in), "f.jsonl")
+			if err == nil || !strings.Contains(err.Error(), tt.want) {
+				t.Errorf("Read error = %v, want one containing %q", err, tt.want)
+			}
+		})
+	}
+}
+
+func TestReadAcceptsCRLFAndNoFinalNewline(t *testing.T) {
+	spec := quayScene()
+	data := render(t, spec, Run(spec, 0))
+	crlf := bytes.ReplaceAll(bytes.TrimSuffix(data, []byte("\n")), []byte("\n"), []byte("\r\n"))
+	rec, err := Read(bytes.NewReader(crlf), "crlf.jsonl")
+	if err != nil {
+		t.Fatalf("Read: %v", err)
+	}
+	if got := render(t, spec, rec.Run); !bytes.Equal(got, data) {
+		t.Error("CRLF copy reads back differently")
+	}
+}
+
+// FuzzRead checks that Read never panics and that whatever it accepts
+// survives a write and a second read unchanged.
+func FuzzRead(f *testing.F) {
+	files, _ := filepath.Glob(filepath.Join("testdata", "*.jsonl"))
+	for _, p := range files {
+		data, err := os.ReadFile(p)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(data)
+	}
+	f.Add([]byte(`{"kind":"trackgate-simulation","version":1,"scenario":"s","hash":"h","run":0,"seed":1,"steps":1}` + "\n" +
+		`{"step":0,"time":1e-9,"detections":[{"id":3,"z":[1,-0]}],"objects":[{"object":"a","x":[2]}],"sources":[{"detection":3,"from":"\u00e9"}]}`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		rec, err := Read(bytes.NewReader(data), "fuzz")
+		if err != nil {
+			return
+		}
+		var a bytes.Buffer
+		if err := Write(&a, rec); err != nil {
+			t.Fatalf("Write of an accepted record: %v", err)
+		}
+		rec2, err := Read(bytes.NewReader(a.Bytes()), "again")
+		if err != nil {
+			t.Fatalf("Read of Write output: %v\n%s", err, a.Bytes())
+		}
+		var b bytes.Buffer
+		if err := Write(&b, rec2); err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(a.Bytes(), b.Bytes()) {
+			t.Fatalf("second round trip differs:\n%s\n%s", a.Bytes(), b.Bytes())
+		}
+	})
+}
