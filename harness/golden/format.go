@@ -1,0 +1,364 @@
+package golden
+
+import (
+	"fmt"
+	"math"
+	"runtime"
+	"runtime/debug"
+	"strconv"
+	"unicode/utf8"
+
+	"trackgate/harness/mot"
+)
+
+// FormatVersion is the golden format version this package writes and reads.
+const FormatVersion = 1
+
+// Kind says what a golden file records.
+type Kind string
+
+// The kinds of golden file.
+const (
+	// Tape: the simulated scans and ground truth of one run.
+	Tape Kind = "tape"
+	// Reference: the reference tracker's frames for one run.
+	Reference Kind = "reference"
+	// Output: a tracker's frames for one run.
+	Output Kind = "output"
+	// Metrics: metric values of one run.
+	Metrics Kind = "metrics"
+)
+
+// Valid reports whether k is one of the defined kinds.
+func (k Kind) Valid() bool {
+	switch k {
+	case Tape, Reference, Output, Metrics:
+		return true
+	}
+	return false
+}
+
+// Platform records where a golden was produced.
+type Platform struct {
+	// Go is the Go release (runtime.Version()).
+	Go string
+	// OS and Arch are runtime.GOOS and runtime.GOARCH.
+	OS, Arch string
+	// AMD64 is the GOAMD64 level the binary was built for ("v1".."v4"),
+	// "" on other architectures.
+	AMD64 string
+}
+
+// ThisPlatform returns the platform of the running binary, reading the
+// GOAMD64 level from the build information.
+func ThisPlatform() Platform {
+	p := Platform{Go: runtime.Version(), OS: runtime.GOOS, Arch: runtime.GOARCH}
+	if bi, ok := debug.ReadBuildInfo(); ok {
+		for _, s := range bi.Settings {
+			if s.Key == "GOAMD64" {
+				p.AMD64 = s.Value
+			}
+		}
+	}
+	if p.Arch == "amd64" && p.AMD64 == "" {
+		p.AMD64 = "v1" // the default level when the build did not record one
+	}
+	return p
+}
+
+// ModuleVersion returns the main module's version from the build
+// information ("(devel)" for a local build, "" when unavailable).
+func ModuleVersion() string {
+	if bi, ok := debug.ReadBuildInfo(); ok {
+		return bi.Main.Version
+	}
+	return ""
+}
+
+// Header is the first line of every golden file.
+type Header struct {
+	// Format is the golden format version (FormatVersion).
+	Format int
+	Kind   Kind
+	// Scenario is the scenario name and ScenarioHash the hex SHA-256 of its
+	// file (scenario.Spec.Hash).
+	Scenario     string
+	ScenarioHash string
+	// Tracker names the tracker for Output and its Metrics; "" otherwise.
+	Tracker string
+	// Run is the run index and Seed the seed it was simulated from.
+	Run  int
+	Seed uint64
+	// Protocol is the tracker protocol version (0 when no tracker ran).
+	Protocol int
+	// Trackgate is the version of trackgate that wrote the file.
+	Trackgate string
+	Platform  Platform
+}
+
+// Step is one record of a Tape: a scan and its ground truth.
+type Step struct {
+	Scan  mot.Scan
+	Truth mot.Truth
+}
+
+// Metric is one record of a Metrics file.
+type Metric struct {
+	Name string
+	// Step is the step the value belongs to, or −1 for a whole-run value.
+	Step  int
+	Value float64
+}
+
+// File is one golden file: the header and the records of its kind (only
+// the slice matching Header.Kind is used).
+type File struct {
+	Header  Header
+	Steps   []Step      // Tape
+	Frames  []mot.Frame // Reference, Output
+	Metrics []Metric    // Metrics
+}
+
+// enc appends JSON to a buffer with keys in the order they are written.
+type enc struct {
+	b     []byte
+	first []bool // per open object/array: no member yet
+}
+
+func (e *enc) sep() {
+	if n := len(e.first); n > 0 {
+		if !e.first[n-1] {
+			e.b = append(e.b, ',')
+		}
+		e.first[n-1] = false
+	}
+}
+func (e *enc) open(c byte)  { e.sep(); e.b = append(e.b, c); e.first = append(e.first, true) }
+func (e *enc) close(c byte) { e.b = append(e.b, c); e.first = e.first[:len(e.first)-1] }
+func (e *enc) key(k string) {
+	e.sep()
+	e.b = strconv.AppendQuote(e.b, k)
+	e.b = append(e.b, ':')
+	e.first = append(e.first, true) // the value that follows takes no comma
+}
+func (e *enc) val() { e.first = e.first[:len(e.first)-1] }
+
+func (e *enc) str(k, v string) { e.key(k); e.b = appendString(e.b, v); e.val() }
+func (e *enc) int(k string, v int64) {
+	e.key(k)
+	e.b = strconv.AppendInt(e.b, v, 10)
+	e.val()
+}
+func (e *enc) uint(k string, v uint64) {
+	e.key(k)
+	e.b = strconv.AppendUint(e.b, v, 10)
+	e.val()
+}
+func (e *enc) float(k string, v float64) { e.key(k); e.b = AppendFloat(e.b, v); e.val() }
+func (e *enc) floats(k string, v []float64) {
+	e.key(k)
+	e.b = appendFloats(e.b, v)
+	e.val()
+}
+func (e *enc) mat(k string, m mot.Mat) {
+	e.key(k)
+	e.b = append(e.b, '[')
+	for i := 0; i < m.Rows; i++ {
+		if i > 0 {
+			e.b = append(e.b, ',')
+		}
+		e.b = appendFloats(e.b, m.Data[i*m.Cols:(i+1)*m.Cols])
+	}
+	e.b = append(e.b, ']')
+	e.val()
+}
+
+func appendFloats(b []byte, v []float64) []byte {
+	b = append(b, '[')
+	for i, x := range v {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = AppendFloat(b, x)
+	}
+	return append(b, ']')
+}
+
+// appendString appends s as a JSON string; invalid UTF-8 becomes U+FFFD.
+func appendString(b []byte, s string) []byte {
+	if !utf8.ValidString(s) {
+		s = string([]rune(s))
+	}
+	b = append(b, '"')
+	for _, r := range s {
+		switch {
+		case r == '"' || r == '\\':
+			b = append(b, '\\', byte(r))
+		case r < 0x20 || r == 0x2028 || r == 0x2029:
+			b = fmt.Appendf(b, `\u%04x`, r)
+		default:
+			b = utf8.AppendRune(b, r)
+		}
+	}
+	return append(b, '"')
+}
+
+// AppendFloat appends v in the golden form: the shortest decimal that parses
+// back to v, or "NaN", "+Inf", "-Inf" as JSON strings.
+func AppendFloat(b []byte, v float64) []byte {
+	switch {
+	case math.IsNaN(v):
+		return append(b, `"NaN"`...)
+	case math.IsInf(v, 1):
+		return append(b, `"+Inf"`...)
+	case math.IsInf(v, -1):
+		return append(b, `"-Inf"`...)
+	}
+	return strconv.AppendFloat(b, v, 'g', -1, 64)
+}
+
+// appendHeader appends the header line (without newline).
+func appendHeader(b []byte, h Header) []byte {
+	e := enc{b: b}
+	e.open('{')
+	e.int("golden", int64(h.Format))
+	e.str("kind", string(h.Kind))
+	e.str("scenario", h.Scenario)
+	e.str("scenario_sha256", h.ScenarioHash)
+	if h.Tracker != "" {
+		e.str("tracker", h.Tracker)
+	}
+	e.int("run", int64(h.Run))
+	e.uint("seed", h.Seed)
+	e.int("protocol", int64(h.Protocol))
+	e.str("trackgate", h.Trackgate)
+	e.str("go", h.Platform.Go)
+	e.str("goos", h.Platform.OS)
+	e.str("goarch", h.Platform.Arch)
+	if h.Platform.AMD64 != "" {
+		e.str("goamd64", h.Platform.AMD64)
+	}
+	e.close('}')
+	return e.b
+}
+
+func appendStep(b []byte, s Step) []byte {
+	e := enc{b: b}
+	e.open('{')
+	e.int("step", int64(s.Scan.Step))
+	e.float("time", s.Scan.Time)
+	e.key("detections")
+	e.open('[')
+	for _, d := range s.Scan.Detections {
+		e.open('{')
+		e.int("id", int64(d.ID))
+		e.floats("z", d.Z)
+		e.close('}')
+	}
+	e.close(']')
+	e.val()
+	e.key("truth")
+	e.open('[')
+	for _, o := range s.Truth.Objects {
+		e.open('{')
+		e.str("object", o.Object)
+		e.floats("x", o.X)
+		e.close('}')
+	}
+	e.close(']')
+	e.val()
+	e.key("origins")
+	e.open('[')
+	for _, o := range s.Truth.Origins {
+		e.open('{')
+		e.int("detection", int64(o.Detection))
+		e.str("object", o.Object)
+		e.close('}')
+	}
+	e.close(']')
+	e.val()
+	e.close('}')
+	return e.b
+}
+
+func appendFrame(b []byte, f mot.Frame) []byte {
+	e := enc{b: b}
+	e.open('{')
+	e.int("step", int64(f.Step))
+	e.key("tracks")
+	e.open('[')
+	for _, t := range f.Tracks {
+		e.open('{')
+		e.str("track", t.Track)
+		e.floats("mean", t.Mean)
+		if t.Cov.Rows > 0 {
+			e.mat("cov", t.Cov)
+		}
+		if t.HasDetection {
+			e.int("detection", int64(t.Detection))
+		}
+		e.close('}')
+	}
+	e.close(']')
+	e.val()
+	e.close('}')
+	return e.b
+}
+
+func appendMetric(b []byte, m Metric) []byte {
+	e := enc{b: b}
+	e.open('{')
+	e.str("metric", m.Name)
+	if m.Step >= 0 {
+		e.int("step", int64(m.Step))
+	}
+	e.float("value", m.Value)
+	e.close('}')
+	return e.b
+}
+
+// Marshal returns f in the golden format. It reports an error when the
+// header is incomplete or a record does not fit the kind.
+func Marshal(f File) ([]byte, error) {
+	h := f.Header
+	if h.Format != FormatVersion {
+		return nil, fmt.Errorf("golden: header format %d, want %d", h.Format, FormatVersion)
+	}
+	if !h.Kind.Valid() {
+		return nil, fmt.Errorf("golden: header kind %q is not one of tape, reference, output, metrics", h.Kind)
+	}
+	if h.Scenario == "" || h.ScenarioHash == "" {
+		return nil, fmt.Errorf("golden: header needs a scenario name and hash")
+	}
+	n := 0
+	switch h.Kind {
+	case Tape:
+		n = len(f.Frames) + len(f.Metrics)
+	case Reference, Output:
+		n = len(f.Steps) + len(f.Metrics)
+	case Metrics:
+		n = len(f.Steps) + len(f.Frames)
+	}
+	if n > 0 {
+		return nil, fmt.Errorf("golden: a %s file holds %d records of another kind", h.Kind, n)
+	}
+	for _, fr := range f.Frames {
+		for _, t := range fr.Tracks {
+			if t.Cov.Rows*t.Cov.Cols != len(t.Cov.Data) {
+				return nil, fmt.Errorf("golden: step %d track %q: covariance %d×%d holds %d values", fr.Step, t.Track, t.Cov.Rows, t.Cov.Cols, len(t.Cov.Data))
+			}
+		}
+	}
+	b := appendHeader(nil, h)
+	b = append(b, '\n')
+	for _, s := range f.Steps {
+		b = append(appendStep(b, s), '\n')
+	}
+	for _, fr := range f.Frames {
+		b = append(appendFrame(b, fr), '\n')
+	}
+	for _, m := range f.Metrics {
+		b = append(appendMetric(b, m), '\n')
+	}
+	return b, nil
+}

@@ -1,0 +1,7 @@
+//go:build !unix
+
+package golden
+
+// isUnsupportedSync treats every folder sync error as unsupported: on these
+// systems (Windows) a folder cannot be opened for sync.
+func isUnsupportedSync(error) bool { return true }
