@@ -272,7 +272,7 @@ func coastal() result.Scenario {
 			run.Status = result.Fail
 			first := &result.Divergence{Step: 23, Kind: "association", Objects: []string{"rib", "clutter det 412"},
 				Message: "tracker updated track rib with clutter detection 412; reference kept detection 409",
-				Margin: ptr(4.73), Probability: ptr(0.0183)}
+				Margin:  ptr(4.73), Probability: ptr(0.0183)}
 			run.Checks[0] = result.Check{Name: "reference", Status: result.Fail,
 				Message: "association departs from the reference at step 23",
 				First:   first,
@@ -284,9 +284,9 @@ func coastal() result.Scenario {
 				},
 				Truncated: 37}
 			run.Checks[1] = result.Check{Name: "golden", Status: result.Fail,
-				Message: "41 values beyond tolerance against golden/clutter_coastal_radar/berth-tracker.jsonl",
-				First:   &result.Divergence{Step: 23, Kind: "estimate", Objects: []string{"rib"}, Message: "track rib position departs from the blessed run"},
-				Diffs:   []result.Diff{{Path: "step 23 / track rib / mean[0]", Want: 412.41, Got: 455.02, Tolerance: "abs 1e-6 + rel 1e-9", Excess: 42.61}},
+				Message:   "41 values beyond tolerance against golden/clutter_coastal_radar/berth-tracker.jsonl",
+				First:     &result.Divergence{Step: 23, Kind: "estimate", Objects: []string{"rib"}, Message: "track rib position departs from the blessed run"},
+				Diffs:     []result.Diff{{Path: "step 23 / track rib / mean[0]", Want: 412.41, Got: 455.02, Tolerance: "abs 1e-6 + rel 1e-9", Excess: 42.61}},
 				Truncated: 40}
 			run.Trace = w.trace([]object{
 				{id: "trawler", x: -400, y: 500, vx: 3.5, vy: -0.6, appear: 0, vanish: steps},
@@ -313,8 +313,8 @@ func coastal() result.Scenario {
 		sc.Runs = append(sc.Runs, run)
 	}
 	sc.Metrics = &result.Metrics{Runs: runs,
-		GOSPA: avg([][]float64{sc.Runs[0].Metrics.GOSPA, sc.Runs[1].Metrics.GOSPA, sc.Runs[2].Metrics.GOSPA}),
-		NEES:  avg([][]float64{sc.Runs[0].Metrics.NEES, sc.Runs[1].Metrics.NEES, sc.Runs[2].Metrics.NEES}),
+		GOSPA:   avg([][]float64{sc.Runs[0].Metrics.GOSPA, sc.Runs[1].Metrics.GOSPA, sc.Runs[2].Metrics.GOSPA}),
+		NEES:    avg([][]float64{sc.Runs[0].Metrics.NEES, sc.Runs[1].Metrics.NEES, sc.Runs[2].Metrics.NEES}),
 		NEESLow: 2.65, NEESHigh: 5.51, NEESConfidence: 0.95, NEESInBand: 0.775, PositionRMSE: 10.4, IDSwitches: 1, FalseTracks: 2}
 	sc.Metrics.MeanGOSPA = mean(sc.Metrics.GOSPA)
 	sc.Gates = []result.Gate{
