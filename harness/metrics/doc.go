@@ -65,6 +65,25 @@
 // worsening worth failing for: the candidate is worse with confidence c and
 // even the optimistic end of the interval exceeds the minimum effect.
 //
+// Ranked is the distribution-free alternative: the same decision rule with
+// the Hodges–Lehmann estimate (median of the Walsh averages (dᵢ + dⱼ)/2) and
+// the Walsh-average interval that inverts the Wilcoxon signed-rank test.
+// SignedRankTest and SignTest give the underlying one-sided p-values.
+//
+// # Per-object errors and identity
+//
+// ScoreRun takes, for every step, the mapping from track id to object id
+// ("" for a false track) and computes, per object o with covered steps
+// K_o (steps at which some track is mapped to o),
+//
+//	RMSE_pos(o) = √( (1/|K_o|) Σ_{k∈K_o} ‖p_k − p̂_k‖² )
+//
+// on the caller's position components, likewise for velocity. An identity
+// switch is counted when o is covered by a track other than the last track
+// that covered it (a gap in between does not reset the last track); a
+// track break when o, alive and covered at step k − 1, is alive but not
+// covered at step k. False-track steps count tracks mapped to "".
+//
 // References:
 //
 //   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
@@ -83,4 +102,6 @@
 //     6(1):1–25, 1908 (the t distribution of the paired mean).
 //   - F. Wilcoxon, "Individual comparisons by ranking methods", Biometrics
 //     Bulletin 1(6):80–83, 1945 (the signed-rank test).
+//   - J. L. Hodges, E. L. Lehmann, "Estimates of location based on rank
+//     tests", Ann. Math. Statist. 34(2):598–611, 1963.
 package metrics
