@@ -168,7 +168,8 @@ func (r *Result) Absent(path string, kind DiffKind) {
 // is absent at a step, is Extra there, and a reference track no tracker
 // track stands for at a step is Missing. Means are compared under p.Mean;
 // covariances under p.Cov when both sides report one (Rows > 0).
-// Frames are matched by Step; paths read "step 17 / track ferry / mean[2]".
+// Within a step, value diffs and Missing come in reference order, then
+// Extra in tracker order. Frames are matched by Step; paths read "step 17 / track ferry / mean[2]".
 func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 	var res Result
 	gotByStep := map[int]mot.Frame{}
@@ -185,12 +186,9 @@ func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 		}
 		byRef := map[string]mot.Estimate{}
 		for _, e := range gf.Tracks {
-			ref, ok := names[e.Track]
-			if !ok {
-				res.Absent(fmt.Sprintf("step %d / tracker track %s", wf.Step, e.Track), Extra)
-				continue
+			if ref, ok := names[e.Track]; ok {
+				byRef[ref] = e
 			}
-			byRef[ref] = e
 		}
 		wantNames := map[string]bool{}
 		for _, w := range wf.Tracks {
@@ -207,7 +205,11 @@ func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 			}
 		}
 		for _, e := range gf.Tracks {
-			if ref, ok := names[e.Track]; ok && !wantNames[ref] {
+			ref, ok := names[e.Track]
+			switch {
+			case !ok:
+				res.Absent(fmt.Sprintf("step %d / tracker track %s", wf.Step, e.Track), Extra)
+			case !wantNames[ref]:
 				res.Absent(fmt.Sprintf("step %d / track %s", wf.Step, ref), Extra)
 			}
 		}
