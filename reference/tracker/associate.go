@@ -1,9 +1,11 @@
 package tracker
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"trackgate/harness/mot"
@@ -216,9 +218,15 @@ func (e *engine) rank(cm *CostMatrix, c *cluster) error {
 	// At least two, so that the margin is known even when k = 1, and one
 	// more than needed, so that a short list proves itself complete.
 	kr := max(e.k, 2) + 1
-	hyps, err := assign.KBest(cost, nr, cols, kr)
-	if err != nil {
-		return err
+	var hyps []assign.Hypothesis
+	if nr == 1 {
+		// One object: its hypotheses are its finite entries in order.
+		hyps = rankSingle(cost, cols, kr)
+	} else {
+		var err error
+		if hyps, err = assign.KBest(cost, nr, cols, kr); err != nil {
+			return err
+		}
 	}
 	if len(hyps) == 0 {
 		return assign.ErrInfeasible
@@ -238,6 +246,27 @@ func (e *engine) rank(cm *CostMatrix, c *cluster) error {
 		c.logZ = math.Log(z)
 	}
 	return nil
+}
+
+// rankSingle ranks the finite entries of a one-row matrix, cheapest first
+// (ties by column), keeping at most k.
+func rankSingle(cost []float64, cols, k int) []assign.Hypothesis {
+	var hyps []assign.Hypothesis
+	for j := 0; j < cols; j++ {
+		if !math.IsInf(cost[j], 1) {
+			hyps = append(hyps, assign.Hypothesis{Cost: cost[j], RowToCol: []int{j}})
+		}
+	}
+	slices.SortFunc(hyps, func(a, b assign.Hypothesis) int {
+		if c := cmp.Compare(a.Cost, b.Cost); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.RowToCol[0], b.RowToCol[0])
+	})
+	if len(hyps) > k {
+		hyps = hyps[:k]
+	}
+	return hyps
 }
 
 // logSumExp returns ln Σ exp(−(h.Cost − best)).
@@ -297,13 +326,27 @@ func (e *engine) hypotheses(d *Detail, cl []*cluster, rowToDet, detIDs []int, r 
 		if len(c.hyps) < 2 {
 			continue
 		}
+		// Both lists are sorted, so candidate (gi, rk) is beaten by every
+		// (gi', rk') with gi' ≤ gi and rk' ≤ rk: only (gi+1)(rk+1) ≤ k can
+		// be among the k best.
 		cands = cands[:0]
 		for gi, g := range list {
 			for rk, h := range c.hyps {
+				if (gi+1)*(rk+1) > e.k {
+					break
+				}
 				cands = append(cands, cand{g.delta + (h.Cost - c.hyps[0].Cost), gi, rk})
 			}
 		}
-		sort.SliceStable(cands, func(a, b int) bool { return cands[a].delta < cands[b].delta })
+		slices.SortFunc(cands, func(a, b cand) int {
+			if c := cmp.Compare(a.delta, b.delta); c != 0 {
+				return c
+			}
+			if c := cmp.Compare(a.from, b.from); c != 0 {
+				return c
+			}
+			return cmp.Compare(a.rank, b.rank)
+		})
 		if len(cands) > e.k {
 			cands = cands[:e.k]
 		}
