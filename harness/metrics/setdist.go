@@ -67,6 +67,7 @@ type Workspace struct {
 	levels  []float64 // sorted distinct cut-off distances
 	match   []int     // truth index → estimate index, −1 if unmatched
 	scratch []int
+	xs, ys  [][]float64 // point views used by GOSPARun
 }
 
 // GOSPA is the generalised OSPA distance (α = 2) between a truth set and an
@@ -100,7 +101,7 @@ func (w *Workspace) GOSPA(truth, est [][]float64, p Params) (GOSPA, error) {
 	for i := range w.match {
 		w.match[i] = -1
 	}
-	if err := w.fill(truth, est, p, order, false); err != nil {
+	if err := w.fill(truth, est, "truth", "estimate", p, order, false); err != nil {
 		return GOSPA{}, err
 	}
 	var g GOSPA
@@ -147,12 +148,14 @@ type OSPA struct {
 // is symmetric in its arguments. Errors and panics are as for GOSPA.
 func (w *Workspace) OSPA(x, y [][]float64, p Params) (OSPA, error) {
 	order := p.order(true)
+	xname, yname := "first", "second"
 	if len(x) > len(y) {
 		x, y = y, x
+		xname, yname = yname, xname
 	}
 	m, n := len(x), len(y)
 	inf := math.IsInf(order, 1)
-	if err := w.fill(x, y, p, order, inf); err != nil {
+	if err := w.fill(x, y, xname, yname, p, order, inf); err != nil {
 		return OSPA{}, err
 	}
 	switch {
@@ -220,12 +223,12 @@ func (w *Workspace) bottleneck(n int) (float64, error) {
 
 // fill checks the points and writes the m×n costs min(d, c)ᵖ into w.cost,
 // or, when dist is set, the cut-off distances min(d, c) into w.dist.
-func (w *Workspace) fill(xs, ys [][]float64, p Params, order float64, dist bool) error {
+func (w *Workspace) fill(xs, ys [][]float64, xname, yname string, p Params, order float64, dist bool) error {
 	width := -1
-	if err := checkPoints("truth", xs, p.Components, &width); err != nil {
+	if err := checkPoints(xname, xs, p.Components, &width); err != nil {
 		return err
 	}
-	if err := checkPoints("estimate", ys, p.Components, &width); err != nil {
+	if err := checkPoints(yname, ys, p.Components, &width); err != nil {
 		return err
 	}
 	m, n := len(xs), len(ys)
@@ -271,6 +274,20 @@ func sqDist(x, y []float64, comps []int) float64 {
 	return s
 }
 
+// PointError reports a point a set distance cannot use.
+type PointError struct {
+	// Set is "truth" or "estimate" for GOSPA, "first" or "second" for OSPA.
+	Set string
+	// Index is the position of the point in its set.
+	Index int
+	// Problem says what is wrong and what was expected.
+	Problem string
+}
+
+func (e *PointError) Error() string {
+	return fmt.Sprintf("%s point %d: %s", e.Set, e.Index, e.Problem)
+}
+
 // checkPoints reports a point too short for the components, of a length
 // different from the others when all components are used, or with a
 // non-finite coordinate.
@@ -285,21 +302,21 @@ func checkPoints(set string, pts [][]float64, comps []int, width *int) error {
 				*width = len(x)
 			}
 			if len(x) != *width {
-				return fmt.Errorf("%s point %d has %d components, want %d like the first point", set, i, len(x), *width)
+				return &PointError{Set: set, Index: i, Problem: fmt.Sprintf("has %d components, want %d like the first point", len(x), *width)}
 			}
 			for k, v := range x {
 				if math.IsNaN(v) || math.IsInf(v, 0) {
-					return fmt.Errorf("%s point %d: component %d is %g, want a finite number", set, i, k, v)
+					return &PointError{Set: set, Index: i, Problem: fmt.Sprintf("component %d is %g, want a finite number", k, v)}
 				}
 			}
 			continue
 		}
 		if len(x) < need {
-			return fmt.Errorf("%s point %d has %d components, want at least %d for components %v", set, i, len(x), need, comps)
+			return &PointError{Set: set, Index: i, Problem: fmt.Sprintf("has %d components, want at least %d for components %v", len(x), need, comps)}
 		}
 		for _, k := range comps {
 			if v := x[k]; math.IsNaN(v) || math.IsInf(v, 0) {
-				return fmt.Errorf("%s point %d: component %d is %g, want a finite number", set, i, k, v)
+				return &PointError{Set: set, Index: i, Problem: fmt.Sprintf("component %d is %g, want a finite number", k, v)}
 			}
 		}
 	}
