@@ -28,7 +28,8 @@
 // updated so that every reduced cost stays non-negative and the path's
 // reduced costs become zero, and the path is flipped. Instead of shifting the
 // matrix by its minimum m, the row duals start at u_i = m, which makes the
-// zero column duals feasible without copying the costs. At the end the duals
+// zero column duals feasible without copying the costs (this is the start
+// with Workspace.NoInit; the default start is described below). At the end the duals
 // are an optimality certificate (see [Workspace.Duals]):
 //
 //	C_ij ≥ u_i + v_j for every finite entry, with equality on assigned pairs,
@@ -52,9 +53,11 @@
 // assignment {(r₁,c₁)…(rₙ,cₙ)} is found, the remaining solution space is split
 // into disjoint subproblems P_k that force (r₁,c₁)…(r_{k−1},c_{k−1}) and forbid
 // (r_k,c_k); a heap of solved subproblems yields the next best. Following
-// Miller, Stone and Cox, each subproblem is solved from its parent's duals and
-// partial assignment, which stay feasible when costs only rise, so one
-// shortest augmenting path (O(n²)) replaces a full solve. To keep that
+// Miller, Stone and Cox, a subproblem first enters the heap with a lower
+// bound computed from its parent's reduced costs and is solved only when it
+// reaches the top; it is then solved from its parent's duals and partial
+// assignment, which stay feasible when costs only rise, so one shortest
+// augmenting path (O(n²)) replaces a full solve. To keep that
 // argument valid for rectangular problems, the wide problem r×c is padded to
 // c×c with zero-cost phantom rows that are never partitioned on, so the
 // column duals need no sign condition; hypotheses differ in the real rows.

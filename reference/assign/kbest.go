@@ -18,8 +18,9 @@ type Hypothesis struct {
 // Equal costs come out in a deterministic but unspecified order. It returns
 // ErrInfeasible when not even one assignment exists, and nil for k ≤ 0.
 //
-// Each subproblem is solved from its parent's duals and partial assignment
-// with a single shortest augmenting path (Miller, Stone and Cox 1997), on the
+// Subproblems wait in the heap under a lower bound and, once on top, are
+// solved from their parent's duals and partial assignment with a single
+// shortest augmenting path (Miller, Stone and Cox 1997), on the
 // problem padded to square with zero-cost phantom rows; see the package
 // documentation.
 func KBest(cost []float64, rows, cols, k int) ([]Hypothesis, error) {
@@ -57,11 +58,16 @@ type ranker struct {
 	seq        int
 }
 
-// node is a solved subproblem: its constraints, optimum and duals.
+// node is a subproblem. An unsolved node carries a lower bound on its
+// optimum and is solved when it reaches the top of the heap; a solved node
+// carries its optimum, assignment and duals.
 type node struct {
-	cost      float64
-	seq       int   // creation order, breaks ties deterministically
-	col4row   []int // n entries
+	cost      float64 // optimum when solved, else a lower bound
+	seq       int     // creation order, breaks ties deterministically
+	solved    bool
+	parent    *node // solved parent whose duals start the solve
+	row       int   // real row freed from the parent's assignment
+	col4row   []int // n entries, when solved
 	u, v      []float64
 	forced    []int32 // per real row: forced column or -1
 	forbidden []int32 // flat (row, column) pairs
@@ -96,6 +102,7 @@ func (r *ranker) run(k int) ([]Hypothesis, error) {
 		return nil, err
 	}
 	root := &node{
+		solved:  true,
 		col4row: append([]int(nil), r.ws.col4row[:n]...),
 		u:       append([]float64(nil), r.ws.u[:n]...),
 		v:       append([]float64(nil), r.ws.v[:n]...),
@@ -110,6 +117,12 @@ func (r *ranker) run(k int) ([]Hypothesis, error) {
 	var out []Hypothesis
 	for len(out) < k && r.queue.Len() > 0 {
 		best := heap.Pop(&r.queue).(*node)
+		if !best.solved {
+			if r.solve(best) {
+				r.push(best)
+			}
+			continue
+		}
 		out = append(out, r.hypothesis(best))
 		if len(out) < k {
 			r.partition(best)
@@ -148,15 +161,12 @@ func (r *ranker) hypothesis(nd *node) Hypothesis {
 	return h
 }
 
-// partition splits the solution space of nd minus its own optimum into
-// disjoint children (Murty 1968): child t forces the optimum's pairs in the
-// free real rows before row t and forbids the pair in row t. Each child is
-// solved by one augmenting path from the parent's duals and assignment.
-func (r *ranker) partition(nd *node) {
+// constrain writes nd's constraints over the base matrix into scratch.
+func (r *ranker) constrain(nd *node) []float64 {
 	n := r.n
-	inf := math.Inf(1)
 	c := r.scratch
 	copy(c, r.base)
+	inf := math.Inf(1)
 	for t := 0; t+1 < len(nd.forbidden); t += 2 {
 		c[int(nd.forbidden[t])*n+int(nd.forbidden[t+1])] = inf
 	}
@@ -165,46 +175,97 @@ func (r *ranker) partition(nd *node) {
 			r.force(c, i, int(j))
 		}
 	}
+	return c
+}
+
+// partition splits the solution space of nd minus its own optimum into
+// disjoint children (Murty 1968): child t forces the optimum's pairs in the
+// free real rows before row t and forbids the pair in row t. Children are
+// not solved here; each gets the lower bound
+//
+//	cost(nd) + min_{j≠c_t} c̄_{t j} + min_{i≠t} c̄_{i c_t}
+//
+// on the child's matrix, where c̄ are the reduced costs under nd's duals:
+// the child's optimum is cost(nd) plus the reduced length of an alternating
+// path that leaves row t by another column and enters column c_t from another
+// row, and those two edges are distinct with non-negative reduced costs
+// (the bound of Miller, Stone and Cox 1997, summed over both ends). A child whose bound is +Inf is
+// infeasible and dropped.
+func (r *ranker) partition(nd *node) {
+	n := r.n
+	inf := math.Inf(1)
+	c := r.constrain(nd)
 	forced := append([]int32(nil), nd.forced...)
-	ws := &r.ws
-	ws.reset(n, n)
-	for i := 0; i < r.nr; i++ {
-		if nd.forced[i] >= 0 {
+	for t := 0; t < r.nr; t++ {
+		if nd.forced[t] >= 0 {
 			continue
 		}
-		j := nd.col4row[i]
-		keep := c[i*n+j]
-		c[i*n+j] = inf
-
-		copy(ws.u[:n], nd.u)
-		copy(ws.v[:n], nd.v)
-		copy(ws.col4row[:n], nd.col4row)
-		for jj := range ws.row4col[:n] {
-			ws.row4col[jj] = -1
-		}
-		for ii, jj := range nd.col4row {
-			if ii != i {
-				ws.row4col[jj] = ii
+		ct := nd.col4row[t]
+		rowSlack, colSlack := inf, inf
+		row := c[t*n : t*n+n]
+		for j, x := range row {
+			if j != ct {
+				if s := x - nd.u[t] - nd.v[j]; s < rowSlack {
+					rowSlack = s
+				}
 			}
 		}
-		ws.col4row[i] = -1
-		if ws.augment(c, n, i) {
-			child := &node{
-				col4row:   append([]int(nil), ws.col4row[:n]...),
-				u:         append([]float64(nil), ws.u[:n]...),
-				v:         append([]float64(nil), ws.v[:n]...),
+		for i := 0; i < n; i++ {
+			if i != t {
+				if s := c[i*n+ct] - nd.u[i] - nd.v[ct]; s < colSlack {
+					colSlack = s
+				}
+			}
+		}
+		if rowSlack < inf && colSlack < inf {
+			bound := nd.cost + max(rowSlack, 0) + max(colSlack, 0)
+			// A margin keeps rounding in the duals from lifting the
+			// bound above the child's true optimum.
+			bound -= 1e-9 * (1 + math.Abs(bound))
+			r.push(&node{
+				cost:      bound,
+				parent:    nd,
+				row:       t,
 				forced:    append([]int32(nil), forced...),
-				forbidden: append(append(make([]int32, 0, len(nd.forbidden)+2), nd.forbidden...), int32(i), int32(j)),
-			}
-			child.cost = r.total(child.col4row)
-			r.push(child)
+				forbidden: append(append(make([]int32, 0, len(nd.forbidden)+2), nd.forbidden...), int32(t), int32(ct)),
+			})
 		}
-
 		// Later children keep this pair: force it.
-		c[i*n+j] = keep
-		r.force(c, i, j)
-		forced[i] = int32(j)
+		r.force(c, t, ct)
+		forced[t] = int32(ct)
 	}
+}
+
+// solve finds the optimum of an unsolved child by one shortest augmenting
+// path from its parent's duals and assignment with the freed row removed.
+// The duals stay feasible because the child's costs are the parent's with
+// some entries raised to +Inf, and the remaining assigned pairs are untouched
+// and tight. It reports false when the child is infeasible.
+func (r *ranker) solve(nd *node) bool {
+	n := r.n
+	c := r.constrain(nd)
+	p := nd.parent
+	ws := &r.ws
+	ws.reset(n, n)
+	copy(ws.u[:n], p.u)
+	copy(ws.v[:n], p.v)
+	copy(ws.col4row[:n], p.col4row)
+	for i, j := range p.col4row {
+		if i != nd.row {
+			ws.row4col[j] = i
+		}
+	}
+	ws.col4row[nd.row] = -1
+	if !ws.augment(c, n, nd.row) {
+		return false
+	}
+	nd.solved = true
+	nd.parent = nil
+	nd.col4row = append([]int(nil), ws.col4row[:n]...)
+	nd.u = append([]float64(nil), ws.u[:n]...)
+	nd.v = append([]float64(nil), ws.v[:n]...)
+	nd.cost = r.total(nd.col4row)
+	return true
 }
 
 // force forbids every pair in row i and column j except (i, j).
