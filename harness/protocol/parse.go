@@ -103,8 +103,11 @@ func (p *parser) more(close byte, first *bool) bool {
 // rawString returns the bytes between the quotes of a string and whether it
 // contained escapes. The string is checked for validity.
 func (p *parser) rawString() (raw []byte, escaped, ok bool) {
-	if p.peek() != '"' {
-		return nil, false, p.syntax("want a string")
+	if c := p.peek(); c != '"' {
+		if c == 0 {
+			return nil, false, p.syntax("unexpected end of line, want a string")
+		}
+		return nil, false, p.syntax("unexpected " + quoteByte(c) + ", want a string")
 	}
 	p.i++
 	start := p.i
