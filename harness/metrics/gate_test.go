@@ -2,7 +2,6 @@ package metrics
 
 import (
 	"math"
-	"math/rand/v2"
 	"strings"
 	"testing"
 
@@ -120,7 +119,7 @@ func TestPairedDecisions(t *testing.T) {
 // a clear shift of 1 (noise s.d. 0.5, 30 runs, so the interval half-width
 // is about 0.26) it fails in every trial.
 func TestPairedSimulation(t *testing.T) {
-	r := rand.New(rand.NewPCG(7, 2026))
+	r := testRand(t, 7)
 	const trials, runs = 200, 30
 	sim := func(shift float64) (cand, base []float64) {
 		cand, base = make([]float64, runs), make([]float64, runs)

@@ -65,7 +65,7 @@ func TestNEES(t *testing.T) {
 // explicit inverse of random 2×2 covariances (closed form
 // [[a,b],[b,c]]⁻¹ = [[c,−b],[−b,a]]/(ac − b²), common practice).
 func TestNEESAgainstExplicitInverse(t *testing.T) {
-	r := rand.New(rand.NewPCG(11, 12))
+	r := testRand(t, 11)
 	for i := 0; i < 2000; i++ {
 		a, c := 0.1+10*r.Float64(), 0.1+10*r.Float64()
 		b := (2*r.Float64() - 1) * 0.95 * math.Sqrt(a*c)
@@ -203,7 +203,7 @@ func simulateNEES(t *testing.T, r *rand.Rand, trueP, claimed mot.Mat, runs, step
 // The acceptance band 0.90–0.99 for 400 steps is ±3.7 binomial standard
 // deviations around 0.95 (common practice).
 func TestConsistencyCoverage(t *testing.T) {
-	r := rand.New(rand.NewPCG(2026, 12))
+	r := testRand(t, 2026)
 	p := mat([]float64{4, 1}, []float64{1, 3})
 	values := simulateNEES(t, r, p, p, 50, 400)
 	c, err := CheckConsistency(values, 2, 0.95)

@@ -2,7 +2,6 @@ package metrics
 
 import (
 	"math"
-	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -55,7 +54,7 @@ func bruteSignedRankP(d []float64) (w, p float64) {
 }
 
 func TestSignedRankExactAgainstEnumeration(t *testing.T) {
-	r := rand.New(rand.NewPCG(21, 22))
+	r := testRand(t, 21)
 	for i := 0; i < 400; i++ {
 		n := r.IntN(13)
 		d := make([]float64, n)
@@ -120,7 +119,7 @@ func TestSignedRankNormalSleep(t *testing.T) {
 }
 
 func TestSignTest(t *testing.T) {
-	r := rand.New(rand.NewPCG(31, 32))
+	r := testRand(t, 31)
 	for i := 0; i < 300; i++ {
 		d := make([]float64, r.IntN(40))
 		for k := range d {
@@ -147,7 +146,7 @@ func TestSignTest(t *testing.T) {
 // the Walsh averages above θ, so just below the lower bound W⁺ reaches the
 // critical value and just above it does not.
 func TestRankedInterval(t *testing.T) {
-	r := rand.New(rand.NewPCG(41, 42))
+	r := testRand(t, 41)
 	for i := 0; i < 200; i++ {
 		n := 6 + r.IntN(20)
 		a, b := make([]float64, n), make([]float64, n)
@@ -194,7 +193,7 @@ func TestRankedInterval(t *testing.T) {
 // free gate, with heavy-tailed (Student t, ν = 2) noise where the t gate
 // loses power.
 func TestRankedSimulation(t *testing.T) {
-	r := rand.New(rand.NewPCG(51, 52))
+	r := testRand(t, 51)
 	noise := distuv.StudentsT{Mu: 0, Sigma: 0.5, Nu: 2, Src: r}
 	const trials, runs = 200, 30
 	count := func(shift float64, g Ranked) int {

@@ -1,6 +1,7 @@
 package metrics
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -179,7 +180,7 @@ func TestOSPAWorked(t *testing.T) {
 // cardinality term vanishes, so GOSPA = n^(1/p)·OSPA (hand derivation from
 // the two definitions); checked on random equal-size sets.
 func TestGOSPAIdentityWithOSPA(t *testing.T) {
-	r := rand.New(rand.NewPCG(3, 4))
+	r := testRand(t, 3)
 	var w Workspace
 	for i := 0; i < 500; i++ {
 		n := 1 + r.IntN(6)
@@ -282,7 +283,7 @@ func bruteOSPA(x, y pts, c, p float64) float64 {
 // TestAgainstBruteForce compares both metrics with exhaustive enumeration
 // on seeded random sets of 0–6 points in 1 to 3 dimensions.
 func TestAgainstBruteForce(t *testing.T) {
-	r := rand.New(rand.NewPCG(1, 2026))
+	r := testRand(t, 1)
 	orders := []float64{1, 2, 3, 1.5, math.Inf(1)}
 	var w Workspace
 	for i := 0; i < 3000; i++ {
@@ -336,7 +337,7 @@ func checkSplit(t *testing.T, g GOSPA, m, n int, c, p float64) {
 // 0 < α ≤ 2 of Rahmathullah et al. 2017, Proposition 1) and for OSPA
 // (Schuhmacher, Vo, Vo 2008, Section III), including p = ∞.
 func TestMetricAxioms(t *testing.T) {
-	r := rand.New(rand.NewPCG(99, 1))
+	r := testRand(t, 99)
 	var w Workspace
 	orders := []float64{1, 2, 2.5, math.Inf(1)}
 	const tol = 1e-9
@@ -390,7 +391,7 @@ func TestMetricAxioms(t *testing.T) {
 // TestComponents checks that distances on chosen components of longer
 // state vectors equal those on the extracted points.
 func TestComponents(t *testing.T) {
-	r := rand.New(rand.NewPCG(5, 6))
+	r := testRand(t, 5)
 	var w Workspace
 	for i := 0; i < 200; i++ {
 		xs, ys := randomSet(r, r.IntN(5), 4, 10), randomSet(r, r.IntN(5), 4, 10)
@@ -521,7 +522,8 @@ func FuzzGOSPA(f *testing.F) {
 
 // BenchmarkGOSPA100 is GOSPA between 100 truth objects and 100 tracks in
 // 2-D with a reused workspace: tracks are the objects displaced by unit
-// Gaussian noise over a 1 km square, c = 20 m, p = 2.
+// Gaussian noise and shuffled, over a 1 km square, p = 2. With c = 20 m
+// nearly every cross pair is cut off; with c = 2 km none is.
 func BenchmarkGOSPA100(b *testing.B) {
 	r := rand.New(rand.NewPCG(100, 100))
 	truth := randomSet(r, 100, 2, 1000)
@@ -530,12 +532,16 @@ func BenchmarkGOSPA100(b *testing.B) {
 		tracks[i] = []float64{x[0] + r.NormFloat64(), x[1] + r.NormFloat64()}
 	}
 	r.Shuffle(len(tracks), func(i, j int) { tracks[i], tracks[j] = tracks[j], tracks[i] })
-	var w Workspace
-	p := Params{Order: 2, Cutoff: 20}
-	b.ReportAllocs()
-	for b.Loop() {
-		if _, err := w.GOSPA(truth, tracks, p); err != nil {
-			b.Fatal(err)
-		}
+	for _, c := range []float64{20, 2000} {
+		b.Run(fmt.Sprintf("c=%g", c), func(b *testing.B) {
+			var w Workspace
+			p := Params{Order: 2, Cutoff: c}
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := w.GOSPA(truth, tracks, p); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }
