@@ -309,7 +309,7 @@ func randSPD(rng *rand.Rand, n int, c float64) []float64 {
 		for j := 0; j < n; j++ {
 			var s float64
 			for k := 0; k < n; k++ {
-				s += a[i*n+k] * a[j*n+k]
+				s += float64(a[i*n+k] * a[j*n+k]) // no fusion: same inputs on every build
 			}
 			out[i*n+j] = s
 		}
@@ -323,7 +323,7 @@ func randModel(rng *rand.Rand, n, m int) mot.Model {
 		F: mot.NewMat(n, n), Q: mot.Mat{Rows: n, Cols: n, Data: randSPD(rng, n, 0.5)},
 		H: mot.NewMat(m, n), R: mot.Mat{Rows: m, Cols: m, Data: randSPD(rng, m, 1)}}
 	for i := range md.F.Data {
-		md.F.Data[i] = rng.NormFloat64() * 0.3
+		md.F.Data[i] = float64(rng.NormFloat64() * 0.3)
 	}
 	for i := 0; i < n; i++ {
 		md.F.Data[i*n+i] += 1
