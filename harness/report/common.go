@@ -1,0 +1,190 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"trackgate/harness/result"
+)
+
+// counts tallies the runs of a scenario by status.
+type counts struct {
+	runs, passed, ties, fails, faults, skips, errors int
+}
+
+func countRuns(sc *result.Scenario) counts {
+	var c counts
+	for _, r := range sc.Runs {
+		c.runs++
+		switch r.Status {
+		case result.Pass:
+			c.passed++
+		case result.Tie:
+			c.passed++
+			c.ties++
+		case result.Skip:
+			c.skips++
+		case result.Fail:
+			c.fails++
+		case result.Faulted:
+			c.faults++
+		default:
+			c.errors++
+		}
+	}
+	return c
+}
+
+// meanGOSPA returns the scenario's mean GOSPA and whether it is known.
+func meanGOSPA(sc *result.Scenario) (float64, bool) {
+	if sc.Metrics != nil && sc.Metrics.Runs > 0 {
+		return sc.Metrics.MeanGOSPA, true
+	}
+	sum, n := 0.0, 0
+	for _, r := range sc.Runs {
+		if r.Metrics != nil && r.Status != result.Faulted {
+			sum += r.Metrics.MeanGOSPA
+			n++
+		}
+	}
+	if n == 0 {
+		return 0, false
+	}
+	return sum / float64(n), true
+}
+
+// num formats a float for people: up to 4 significant digits, no exponent
+// for ordinary magnitudes.
+func num(x float64) string {
+	switch {
+	case math.IsNaN(x):
+		return "NaN"
+	case math.IsInf(x, 1):
+		return "+Inf"
+	case math.IsInf(x, -1):
+		return "-Inf"
+	}
+	a := math.Abs(x)
+	if a != 0 && (a < 1e-3 || a >= 1e7) {
+		return strconv.FormatFloat(x, 'g', 4, 64)
+	}
+	s := strconv.FormatFloat(x, 'f', 4, 64)
+	// Keep four significant digits at most.
+	if a >= 1 {
+		digits := len(strconv.FormatFloat(math.Trunc(a), 'f', 0, 64))
+		dec := max(0, 4-digits)
+		s = strconv.FormatFloat(x, 'f', dec, 64)
+	}
+	if strings.Contains(s, ".") {
+		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	}
+	if s == "-0" {
+		s = "0"
+	}
+	return s
+}
+
+// exact formats a float in the shortest form that reads back to the same
+// value: compared values are shown in full.
+func exact(x float64) string {
+	switch {
+	case math.IsNaN(x):
+		return "NaN"
+	case math.IsInf(x, 1):
+		return "+Inf"
+	case math.IsInf(x, -1):
+		return "-Inf"
+	}
+	return strconv.FormatFloat(x, 'g', -1, 64)
+}
+
+// worstDiffs returns up to n diffs, largest excess first (stable for ties).
+func worstDiffs(ds []result.Diff, n int) []result.Diff {
+	out := append([]result.Diff(nil), ds...)
+	sort.SliceStable(out, func(i, j int) bool {
+		ei, ej := out[i].Excess, out[j].Excess
+		if math.IsNaN(ei) {
+			return !math.IsNaN(ej)
+		}
+		return ei > ej
+	})
+	if len(out) > n {
+		out = out[:n]
+	}
+	return out
+}
+
+// visible makes text from a tracker safe to print: control characters
+// other than newline and tab are escaped (\x07), invalid UTF-8 is escaped
+// by byte.
+func visible(s string) string {
+	var b strings.Builder
+	for i := 0; i < len(s); {
+		r, size := utf8.DecodeRuneInString(s[i:])
+		switch {
+		case r == utf8.RuneError && size == 1:
+			fmt.Fprintf(&b, `\x%02x`, s[i])
+		case r == '\n' || r == '\t':
+			b.WriteRune(r)
+		case r < 0x20 || r == 0x7f || (r >= 0x80 && r < 0xa0):
+			fmt.Fprintf(&b, `\x%02x`, r)
+		default:
+			b.WriteString(s[i : i+size])
+		}
+		i += size
+	}
+	return b.String()
+}
+
+// tail returns the last n lines of s, without a trailing empty line, and
+// how many lines were left out.
+func tail(s string, n int) ([]string, int) {
+	s = strings.TrimRight(s, "\n")
+	if s == "" {
+		return nil, 0
+	}
+	lines := strings.Split(s, "\n")
+	if len(lines) <= n {
+		return lines, 0
+	}
+	return lines[len(lines)-n:], len(lines) - n
+}
+
+// divergenceFacts returns the "margin …, probability …" part of a
+// divergence, or "".
+func divergenceFacts(d *result.Divergence) string {
+	var parts []string
+	if d.Margin != nil {
+		parts = append(parts, "margin "+exact(*d.Margin))
+	}
+	if d.Probability != nil {
+		parts = append(parts, "probability "+exact(*d.Probability))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// statusWord is the upper-case word for a status.
+func statusWord(s result.Status) string {
+	switch s {
+	case result.Faulted:
+		return "FAULT"
+	case "":
+		return "?"
+	}
+	return strings.ToUpper(string(s))
+}
+
+// plural returns "1 tie" or "2 ties".
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return strconv.Itoa(n) + " " + many
+}
+
+// runOK reports whether a run needs no detail in a summary.
+func runOK(r *result.Run) bool { return r.Status == result.Pass || r.Status == result.Skip }

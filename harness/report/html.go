@@ -1,0 +1,557 @@
+package report
+
+import (
+	"fmt"
+	"html/template"
+	"io"
+	"math"
+	"strings"
+
+	"trackgate/harness/result"
+)
+
+// HTML writes s as one self-contained HTML page (see the package
+// documentation).
+func HTML(w io.Writer, s *result.Suite) error {
+	page := htmlPage{Suite: s, Verdict: statusWord(s.Status), StatusClass: string(s.Status), Platform: platform(s.Platform)}
+	for _, sc := range s.Scenarios {
+		c := countRuns(&sc)
+		page.Total += c.runs
+		page.Passed += c.passed
+	}
+	if s.Shard != nil {
+		page.Shard = fmt.Sprintf("shard %d of %d (0-based)", s.Shard.Index, s.Shard.Total)
+	}
+	for i := range s.Scenarios {
+		page.Scenarios = append(page.Scenarios, htmlScenarioOf(&s.Scenarios[i], i))
+	}
+	return pageTemplate.Execute(w, page)
+}
+
+type htmlPage struct {
+	Suite         *result.Suite
+	Verdict       string
+	StatusClass   string
+	Platform      string
+	Shard         string
+	Passed, Total int
+	Scenarios     []htmlScenario
+}
+
+type htmlScenario struct {
+	Anchor      string
+	Sc          *result.Scenario
+	Word        string
+	StatusClass string
+	Passed      int
+	Runs        int
+	MeanGOSPA   string
+	Shown       string // which run is plotted and why
+	Problems    []htmlProblem
+	Plane       template.HTML
+	Timeline    template.HTML
+	GOSPA       template.HTML
+	NEES        template.HTML
+}
+
+type htmlProblem struct {
+	Title       string
+	StatusClass string
+	Lines       []string
+	Diffs       []result.Diff
+	DiffNote    string
+	Stderr      string
+}
+
+func htmlScenarioOf(sc *result.Scenario, i int) htmlScenario {
+	c := countRuns(sc)
+	h := htmlScenario{Anchor: fmt.Sprintf("s%d", i), Sc: sc, Word: statusWord(sc.Status), StatusClass: string(sc.Status), Passed: c.passed, Runs: c.runs, MeanGOSPA: "–"}
+	if g, ok := meanGOSPA(sc); ok {
+		h.MeanGOSPA = num(g)
+	}
+	for ri := range sc.Runs {
+		r := &sc.Runs[ri]
+		if runOK(r) {
+			continue
+		}
+		for ci := range r.Checks {
+			ch := &r.Checks[ci]
+			if ch.Status == result.Pass || ch.Status == result.Skip {
+				continue
+			}
+			p := htmlProblem{Title: fmt.Sprintf("run %d (seed %d), %s check: %s", r.Index, r.Seed, ch.Name, statusWord(ch.Status)), StatusClass: string(ch.Status)}
+			if ch.Message != "" {
+				p.Lines = append(p.Lines, ch.Message)
+			}
+			if d := ch.First; d != nil {
+				p.Lines = append(p.Lines, divergenceLine("first divergence", d))
+			}
+			for ti := range ch.Ties {
+				p.Lines = append(p.Lines, divergenceLine("tie", &ch.Ties[ti]))
+			}
+			p.Diffs = worstDiffs(ch.Diffs, 8)
+			if n := len(ch.Diffs) + ch.Truncated; n > len(p.Diffs) {
+				p.DiffNote = fmt.Sprintf("the %d largest of %d differences", len(p.Diffs), n)
+			}
+			h.Problems = append(h.Problems, p)
+		}
+		if f := r.Fault; f != nil {
+			p := htmlProblem{Title: fmt.Sprintf("run %d (seed %d): tracker fault %s", r.Index, r.Seed, f.Class), StatusClass: string(result.Faulted)}
+			p.Lines = append(p.Lines, fmt.Sprintf("at step %d, tracker output line %d: %s", f.Step, f.Line, f.Message))
+			if f.Excerpt != "" {
+				p.Lines = append(p.Lines, "output: "+visible(f.Excerpt))
+			}
+			lines, cut := tail(f.Stderr, 12)
+			if cut > 0 {
+				p.Lines = append(p.Lines, fmt.Sprintf("stderr: last %d lines of %d", len(lines), len(lines)+cut))
+			}
+			p.Stderr = visible(strings.Join(lines, "\n"))
+			h.Problems = append(h.Problems, p)
+		}
+	}
+	for _, g := range sc.Gates {
+		if g.Status == result.Pass || g.Status == result.Tie {
+			continue
+		}
+		h.Problems = append(h.Problems, htmlProblem{Title: "gate " + g.Name + ": " + statusWord(g.Status), StatusClass: string(g.Status),
+			Lines: []string{fmt.Sprintf("%s (estimate %s in [%s, %s], threshold %s)", g.Message, num(g.Estimate), num(g.Low), num(g.High), num(g.Threshold))}})
+	}
+
+	run := pickRun(sc)
+	if run == nil {
+		h.Shown = "No runs to plot."
+		return h
+	}
+	why := "run 0"
+	if !runOK(run) {
+		why = "the first run that did not pass"
+	}
+	h.Shown = fmt.Sprintf("Plots show run %d (seed %d), %s.", run.Index, run.Seed, why)
+	if run.Index != 0 && runOK(run) {
+		h.Shown = fmt.Sprintf("Plots show run %d (seed %d).", run.Index, run.Seed)
+	}
+	marks := divergenceMarks(run)
+	if run.Trace != nil {
+		if len(sc.Position) >= 2 {
+			h.Plane = planePlot(run.Trace, marks)
+		} else {
+			h.Plane = timePlot(run.Trace, marks)
+		}
+		h.Timeline = timelinePlot(run.Trace.Associations, marks)
+	} else {
+		h.Shown += " This run has no trace recorded, so only its metrics are plotted."
+	}
+	h.GOSPA = gospaPlot(sc, run, marks)
+	h.NEES = neesPlot(sc, run)
+	return h
+}
+
+func divergenceLine(label string, d *result.Divergence) string {
+	s := fmt.Sprintf("%s at step %d (%s)", label, d.Step, d.Kind)
+	if len(d.Objects) > 0 {
+		s += ", objects " + strings.Join(d.Objects, ", ")
+	}
+	if f := divergenceFacts(d); f != "" {
+		s += "; " + f
+	}
+	return s + ": " + d.Message
+}
+
+// pickRun returns the run to plot: the first that failed, faulted or
+// errored, else the first tie, else run 0 (the first run listed).
+func pickRun(sc *result.Scenario) *result.Run {
+	if len(sc.Runs) == 0 {
+		return nil
+	}
+	for i := range sc.Runs {
+		if st := sc.Runs[i].Status; st.Rank() >= result.Fail.Rank() {
+			return &sc.Runs[i]
+		}
+	}
+	for i := range sc.Runs {
+		if sc.Runs[i].Status == result.Tie {
+			return &sc.Runs[i]
+		}
+	}
+	return &sc.Runs[0]
+}
+
+// marks are the steps to highlight: the first divergence and the ties.
+type marks struct {
+	first     int // -1 when none
+	firstKind string
+	ties      []int
+}
+
+func divergenceMarks(r *result.Run) marks {
+	m := marks{first: -1}
+	for _, c := range r.Checks {
+		if c.First != nil && (m.first < 0 || c.First.Step < m.first) {
+			m.first, m.firstKind = c.First.Step, c.First.Kind
+		}
+		for _, t := range c.Ties {
+			m.ties = append(m.ties, t.Step)
+		}
+	}
+	if r.Fault != nil && (m.first < 0 || r.Fault.Step < m.first) {
+		m.first, m.firstKind = r.Fault.Step, "fault"
+	}
+	return m
+}
+
+func finite(xs ...float64) bool {
+	for _, x := range xs {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return true
+}
+
+// bounds accumulates a data range.
+type bounds struct {
+	x0, x1, y0, y1 float64
+	any            bool
+}
+
+func (b *bounds) add(x, y float64) {
+	if !finite(x, y) {
+		return
+	}
+	if !b.any {
+		b.x0, b.x1, b.y0, b.y1, b.any = x, x, y, y, true
+		return
+	}
+	b.x0, b.x1 = math.Min(b.x0, x), math.Max(b.x1, x)
+	b.y0, b.y1 = math.Min(b.y0, y), math.Max(b.y1, y)
+}
+
+const (
+	plotW   = 720.0
+	planeH  = 460.0
+	seriesH = 230.0
+	padL    = 62.0
+	padR    = 150.0 // legend
+	padT    = 14.0
+	padB    = 44.0
+)
+
+func open(s *svg, w, h float64, label string) {
+	s.add(`<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 %s %s" width="%s" height="%s" role="img" aria-label="%s">`, f1(w), f1(h), f1(w), f1(h), esc(label))
+}
+
+// planePlot draws a 2-D trace: y against x, equal aspect.
+func planePlot(tr *result.Trace, m marks) template.HTML {
+	var b bounds
+	addPath := func(ps []result.Path, ell bool) {
+		for _, p := range ps {
+			for _, pt := range p.Points {
+				b.add(pt.X, pt.Y)
+				if ell && pt.Ellipse != nil {
+					if r1, _, _, ok := ellipseAxes(pt.Ellipse[0], pt.Ellipse[1], pt.Ellipse[2]); ok {
+						b.add(pt.X-r1, pt.Y-r1)
+						b.add(pt.X+r1, pt.Y+r1)
+					}
+				}
+			}
+		}
+	}
+	addPath(tr.Truth, false)
+	addPath(tr.Reference, true)
+	addPath(tr.Tracker, true)
+	for _, step := range tr.Detections {
+		for _, pt := range step {
+			b.add(pt.X, pt.Y)
+		}
+	}
+	s := &svg{}
+	open(s, plotW, planeH, "positions in the plane")
+	if !b.any {
+		s.add(`<text class="empty" x="20" y="40">no positions recorded</text></svg>`)
+		return template.HTML(s.b.String())
+	}
+	f := newFrame(padL, padT, plotW-padL-padR, planeH-padT-padB, b.x0, b.x1, b.y0, b.y1, true)
+	s.axes(f, "x (m)", "y (m)")
+	s.add(`<g clip-path="none">`)
+	for _, step := range tr.Detections {
+		for _, pt := range step {
+			if finite(pt.X, pt.Y) {
+				s.add(`<circle class="det" cx="%s" cy="%s" r="2.2"/>`, f1(f.px(pt.X)), f1(f.py(pt.Y)))
+			}
+		}
+	}
+	scale := f.width / (f.x1 - f.x0)
+	drawEllipses := func(ps []result.Path, class string) {
+		for _, p := range ps {
+			for _, pt := range p.Points {
+				if pt.Ellipse == nil || !finite(pt.X, pt.Y) {
+					continue
+				}
+				r1, r2, th, ok := ellipseAxes(pt.Ellipse[0], pt.Ellipse[1], pt.Ellipse[2])
+				if !ok {
+					continue
+				}
+				// SVG's y axis points down, so the angle changes sign.
+				s.add(`<ellipse class="%s" cx="%s" cy="%s" rx="%s" ry="%s" transform="rotate(%s %s %s)"/>`, class,
+					f1(f.px(pt.X)), f1(f.py(pt.Y)), f1(r1*scale), f1(r2*scale), f1(-th*180/math.Pi), f1(f.px(pt.X)), f1(f.py(pt.Y)))
+			}
+		}
+	}
+	drawEllipses(tr.Reference, "refell")
+	drawEllipses(tr.Tracker, "trkell")
+	drawPaths := func(ps []result.Path, class, what string) {
+		for _, p := range ps {
+			var xs, ys []float64
+			for _, pt := range p.Points {
+				if finite(pt.X, pt.Y) {
+					xs, ys = append(xs, f.px(pt.X)), append(ys, f.py(pt.Y))
+				}
+			}
+			s.polyline(class, what+" "+p.ID, xs, ys)
+		}
+	}
+	drawPaths(tr.Truth, "truth", "truth")
+	drawPaths(tr.Reference, "ref", "reference track")
+	drawPaths(tr.Tracker, "trk", "tracker track")
+	for _, p := range tr.Truth {
+		if n := len(p.Points); n > 0 {
+			pt := p.Points[n-1]
+			if finite(pt.X, pt.Y) {
+				s.add(`<text class="label" x="%s" y="%s">%s</text>`, f1(f.px(pt.X)+5), f1(f.py(pt.Y)-5), esc(p.ID))
+			}
+		}
+	}
+	if m.first >= 0 {
+		for _, p := range tr.Tracker {
+			for _, pt := range p.Points {
+				if pt.Step == m.first && finite(pt.X, pt.Y) {
+					s.add(`<circle class="diverge" cx="%s" cy="%s" r="7"><title>first divergence, step %d (%s)</title></circle>`, f1(f.px(pt.X)), f1(f.py(pt.Y)), m.first, esc(m.firstKind))
+				}
+			}
+		}
+	}
+	s.add(`</g>`)
+	items := []legendItem{{"truth", "truth", "line"}, {"det", "detections", "dot"}, {"ref", "reference", "line"}, {"trk", "tracker", "line"}, {"refell", "2σ reference", "band"}, {"trkell", "2σ tracker", "band"}}
+	if m.first >= 0 {
+		items = append(items, legendItem{"diverge", "first divergence", "dot"})
+	}
+	s.legend(plotW-padR+14, padT+10, items)
+	s.add(`</svg>`)
+	return template.HTML(s.b.String())
+}
+
+// timePlot draws a 1-D trace: position against step.
+func timePlot(tr *result.Trace, m marks) template.HTML {
+	var b bounds
+	for _, ps := range [][]result.Path{tr.Truth, tr.Reference, tr.Tracker} {
+		for _, p := range ps {
+			for _, pt := range p.Points {
+				b.add(float64(pt.Step), pt.X)
+				if pt.Ellipse != nil && pt.Ellipse[0] >= 0 {
+					r := math.Sqrt(pt.Ellipse[0])
+					b.add(float64(pt.Step), pt.X-r)
+					b.add(float64(pt.Step), pt.X+r)
+				}
+			}
+		}
+	}
+	for k, step := range tr.Detections {
+		for _, pt := range step {
+			b.add(float64(k), pt.X)
+		}
+	}
+	s := &svg{}
+	open(s, plotW, planeH, "position against time")
+	if !b.any {
+		s.add(`<text class="empty" x="20" y="40">no positions recorded</text></svg>`)
+		return template.HTML(s.b.String())
+	}
+	f := newFrame(padL, padT, plotW-padL-padR, planeH-padT-padB, b.x0, b.x1, b.y0, b.y1, false)
+	s.axes(f, "step", "position (m)")
+	for k, step := range tr.Detections {
+		for _, pt := range step {
+			if finite(pt.X) {
+				s.add(`<circle class="det" cx="%s" cy="%s" r="2.2"/>`, f1(f.px(float64(k))), f1(f.py(pt.X)))
+			}
+		}
+	}
+	bars := func(ps []result.Path, class string, dx float64) {
+		for _, p := range ps {
+			for _, pt := range p.Points {
+				if pt.Ellipse == nil || !(pt.Ellipse[0] >= 0) || !finite(pt.X, pt.Ellipse[0]) {
+					continue
+				}
+				r := math.Sqrt(pt.Ellipse[0])
+				x := f.px(float64(pt.Step)) + dx
+				s.add(`<line class="%s" x1="%s" y1="%s" x2="%s" y2="%s"/>`, class, f1(x), f1(f.py(pt.X-r)), f1(x), f1(f.py(pt.X+r)))
+			}
+		}
+	}
+	bars(tr.Reference, "refbar", -1.5)
+	bars(tr.Tracker, "trkbar", 1.5)
+	lines := func(ps []result.Path, class, what string) {
+		for _, p := range ps {
+			var xs, ys []float64
+			for _, pt := range p.Points {
+				if finite(pt.X) {
+					xs, ys = append(xs, f.px(float64(pt.Step))), append(ys, f.py(pt.X))
+				}
+			}
+			s.polyline(class, what+" "+p.ID, xs, ys)
+		}
+	}
+	lines(tr.Truth, "truth", "truth")
+	lines(tr.Reference, "ref", "reference track")
+	lines(tr.Tracker, "trk", "tracker track")
+	for _, p := range tr.Truth {
+		if n := len(p.Points); n > 0 && finite(p.Points[n-1].X) {
+			pt := p.Points[n-1]
+			s.add(`<text class="label" x="%s" y="%s">%s</text>`, f1(f.px(float64(pt.Step))+5), f1(f.py(pt.X)+4), esc(p.ID))
+		}
+	}
+	stepMarks(s, f, m)
+	items := []legendItem{{"truth", "truth", "line"}, {"det", "detections", "dot"}, {"ref", "reference ±2σ", "line"}, {"trk", "tracker ±2σ", "line"}}
+	s.legend(plotW-padR+14, padT+10, items)
+	s.add(`</svg>`)
+	return template.HTML(s.b.String())
+}
+
+// stepMarks draws vertical markers at the first divergence and the ties.
+func stepMarks(s *svg, f *frame, m marks) {
+	for _, t := range m.ties {
+		x := f.px(float64(t))
+		if x >= f.left && x <= f.left+f.width {
+			s.add(`<line class="tiemark" x1="%s" y1="%s" x2="%s" y2="%s"><title>tie at step %d</title></line>`, f1(x), f1(f.top), f1(x), f1(f.top+f.height), t)
+		}
+	}
+	if m.first >= 0 {
+		x := f.px(float64(m.first))
+		if x >= f.left && x <= f.left+f.width {
+			s.add(`<line class="divmark" x1="%s" y1="%s" x2="%s" y2="%s"><title>first divergence at step %d (%s)</title></line>`, f1(x), f1(f.top), f1(x), f1(f.top+f.height), m.first, esc(m.firstKind))
+			s.add(`<text class="marktext" x="%s" y="%s">step %d</text>`, f1(x+3), f1(f.top+11), m.first)
+		}
+	}
+}
+
+// timelinePlot draws one cell per step, coloured by whether the tracker's
+// association agreed with the reference's.
+func timelinePlot(assoc []string, m marks) template.HTML {
+	s := &svg{}
+	const h = 78.0
+	open(s, plotW, h, "association timeline")
+	if len(assoc) == 0 {
+		s.add(`<text class="empty" x="20" y="30">no association record</text></svg>`)
+		return template.HTML(s.b.String())
+	}
+	f := &frame{left: padL, top: 10, width: plotW - padL - padR, height: 24, x0: -0.5, x1: float64(len(assoc)) - 0.5, y0: 0, y1: 1}
+	_, _, f.xstep = ticks(0, float64(len(assoc)-1), 8)
+	w := f.width / float64(len(assoc))
+	for k, a := range assoc {
+		class := "same"
+		switch a {
+		case "tie":
+			class = "tiecell"
+		case "differs":
+			class = "differs"
+		case "same":
+		default:
+			class = "unknown"
+		}
+		s.add(`<rect class="%s" x="%s" y="%s" width="%s" height="%s"><title>step %d: %s</title></rect>`, class, f1(f.left+float64(k)*w), f1(f.top), f1(math.Max(w-0.6, 0.6)), f1(f.height), k, esc(a))
+	}
+	for v := 0.0; v <= f.x1; v += f.xstep {
+		s.add(`<text class="tick" x="%s" y="%s" text-anchor="middle">%s</text>`, f1(f.px(v)), f1(f.top+f.height+14), esc(tickLabel(v, f.xstep)))
+	}
+	for _, t := range m.ties {
+		s.add(`<path class="tiemark2" d="M%s %s l5 -7 l5 7 z"><title>tie at step %d</title></path>`, f1(f.px(float64(t))-5), f1(f.top+f.height+2+7), t)
+	}
+	if m.first >= 0 {
+		s.add(`<path class="divmark2" d="M%s %s l6 -9 l6 9 z"><title>first divergence at step %d</title></path>`, f1(f.px(float64(m.first))-6), f1(f.top+f.height+30), m.first)
+	}
+	s.add(`<text class="axis" x="%s" y="%s" text-anchor="middle">step</text>`, f1(f.left+f.width/2), f1(h-4))
+	s.legend(plotW-padR+14, 14, []legendItem{{"same", "same as reference", "band"}, {"tiecell", "tie", "band"}, {"differs", "differs", "band"}})
+	s.add(`</svg>`)
+	return template.HTML(s.b.String())
+}
+
+// seriesPlot draws series over steps, with an optional band.
+type series struct {
+	class, label string
+	ys           []float64
+}
+
+func seriesPlot(label, ytitle string, ss []series, band *[2]float64, bandLabel string, m marks) template.HTML {
+	s := &svg{}
+	open(s, plotW, seriesH, label)
+	var b bounds
+	b.add(0, 0)
+	for _, sr := range ss {
+		for k, y := range sr.ys {
+			b.add(float64(k), y)
+		}
+	}
+	if band != nil {
+		b.add(0, band[0])
+		b.add(0, band[1])
+	}
+	if b.x1 == 0 {
+		b.x1 = 1
+	}
+	f := newFrame(padL, padT, plotW-padL-padR, seriesH-padT-padB, b.x0, b.x1, b.y0, b.y1, false)
+	s.axes(f, "step", ytitle)
+	if band != nil {
+		s.add(`<rect class="band" x="%s" y="%s" width="%s" height="%s"><title>%s</title></rect>`, f1(f.left), f1(f.py(band[1])), f1(f.width), f1(f.py(band[0])-f.py(band[1])), esc(bandLabel))
+	}
+	stepMarks(s, f, m)
+	var items []legendItem
+	for _, sr := range ss {
+		var xs, ys []float64
+		for k, y := range sr.ys {
+			if finite(y) {
+				xs, ys = append(xs, f.px(float64(k))), append(ys, f.py(y))
+			}
+		}
+		s.polyline(sr.class, sr.label, xs, ys)
+		items = append(items, legendItem{sr.class, sr.label, "line"})
+	}
+	if band != nil {
+		items = append(items, legendItem{"band", bandLabel, "band"})
+	}
+	s.legend(plotW-padR+14, padT+10, items)
+	s.add(`</svg>`)
+	return template.HTML(s.b.String())
+}
+
+func gospaPlot(sc *result.Scenario, r *result.Run, m marks) template.HTML {
+	var ss []series
+	if r.Metrics != nil && len(r.Metrics.GOSPA) > 0 {
+		ss = append(ss, series{"trk", fmt.Sprintf("run %d", r.Index), r.Metrics.GOSPA})
+	}
+	if sc.Metrics != nil && len(sc.Metrics.GOSPA) > 0 {
+		ss = append(ss, series{"avg", fmt.Sprintf("mean of %d runs", sc.Metrics.Runs), sc.Metrics.GOSPA})
+	}
+	if len(ss) == 0 {
+		return ""
+	}
+	return seriesPlot("GOSPA over time", "GOSPA (m)", ss, nil, "", m)
+}
+
+func neesPlot(sc *result.Scenario, r *result.Run) template.HTML {
+	var ss []series
+	var band *[2]float64
+	label := ""
+	if mt := sc.Metrics; mt != nil && len(mt.NEES) > 0 {
+		ss = append(ss, series{"avg", fmt.Sprintf("average of %d runs", mt.Runs), mt.NEES})
+		if mt.NEESHigh > mt.NEESLow {
+			band = &[2]float64{mt.NEESLow, mt.NEESHigh}
+			label = fmt.Sprintf("%s%% band", num(100*mt.NEESConfidence))
+		}
+	}
+	if r.Metrics != nil && len(r.Metrics.NEES) > 0 {
+		ss = append([]series{{"trk", fmt.Sprintf("run %d", r.Index), r.Metrics.NEES}}, ss...)
+	}
+	if len(ss) == 0 {
+		return ""
+	}
+	return seriesPlot("NEES over time", "NEES", ss, band, label, marks{first: -1})
+}
