@@ -239,18 +239,36 @@ func (w *Workspace) fill(xs, ys [][]float64, xname, yname string, p Params, orde
 	} else {
 		w.cost = grow(w.cost, m*n)
 	}
+	// Planar positions, the common case, take a loop without the
+	// component indirection.
+	a, b, planar := 0, 1, width == 2 && p.Components == nil
+	if len(p.Components) == 2 {
+		a, b, planar = p.Components[0], p.Components[1], true
+	}
 	for i, x := range xs {
+		var out []float64
+		if dist {
+			out = w.dist[i*n : i*n+n]
+		} else {
+			out = w.cost[i*n : i*n+n]
+		}
 		for j, y := range ys {
-			d2 := sqDist(x, y, p.Components)
+			var d2 float64
+			if planar {
+				dx, dy := x[a]-y[a], x[b]-y[b]
+				d2 = float64(dx*dx) + float64(dy*dy)
+			} else {
+				d2 = sqDist(x, y, p.Components)
+			}
 			switch {
 			case dist:
-				w.dist[i*n+j] = math.Min(math.Sqrt(d2), p.Cutoff)
+				out[j] = math.Min(math.Sqrt(d2), p.Cutoff)
 			case d2 >= c2:
-				w.cost[i*n+j] = cp
+				out[j] = cp
 			case order == 2:
-				w.cost[i*n+j] = d2
+				out[j] = d2
 			default:
-				w.cost[i*n+j] = math.Min(powp(math.Sqrt(d2), order), cp)
+				out[j] = math.Min(powp(math.Sqrt(d2), order), cp)
 			}
 		}
 	}
