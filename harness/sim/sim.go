@@ -226,15 +226,24 @@ func (s *Sim) Run(run int) mot.Run {
 	nextID := 0
 
 	for k := 0; k < spec.Steps; k++ {
-		// Truth: start or propagate every living object.
-		var alive []mot.TruthState
+		// Truth: start or propagate every living object. The states of a
+		// step share one backing array.
+		living := 0
+		for i := range objs {
+			if objs[i].Alive(k) {
+				living++
+			}
+		}
+		flat := make([]float64, living*n)
+		alive := make([]mot.TruthState, 0, living)
 		for i := range objs {
 			o := &objs[i]
 			if !o.Alive(k) {
 				state[i] = nil
 				continue
 			}
-			x := make([]float64, n)
+			x := flat[:n:n]
+			flat = flat[n:]
 			if k == o.Appear {
 				copy(x, o.Mean)
 				if o.DrawStart {
@@ -267,6 +276,7 @@ func (s *Sim) Run(run int) mot.Run {
 			}
 		} else {
 			scanSrc.Seed(streamSeeds(seed, streamScan, k))
+			zs := make([]float64, living*m)
 			for i := range objs {
 				x := state[i]
 				if x == nil {
@@ -276,7 +286,8 @@ func (s *Sim) Run(run int) mot.Run {
 					continue
 				}
 				gaussTo(noise[:m], s.measG, scratch, scanRng)
-				z := make([]float64, m)
+				z := zs[:m:m]
+				zs = zs[m:]
 				for r := 0; r < m; r++ {
 					var v float64
 					for c := 0; c < n; c++ {
