@@ -172,7 +172,7 @@ func (pr *Projection) Distance2(z []float64) float64 {
 // LogLikelihood returns ln N(z; ẑ, S) = −½ (d² + M ln 2π + ln|S|) for a
 // detection at squared distance d2 (from Distance2).
 func (pr *Projection) LogLikelihood(d2 float64) float64 {
-	return -0.5 * (d2 + float64(float64(pr.M)*ln2Pi) + pr.LogDetS)
+	return float64(-0.5 * (d2 + float64(float64(pr.M)*ln2Pi) + pr.LogDetS))
 }
 
 // Result describes one measurement update.

@@ -242,7 +242,7 @@ func (e *engine) rank(cm *CostMatrix, c *cluster) error {
 	default:
 		z := math.Exp(logSumExp(hyps, best))
 		last := hyps[len(hyps)-1].Cost - best
-		z += math.Max(0, c.count-float64(len(hyps))) * math.Exp(-last)
+		z += float64(math.Max(0, c.count-float64(len(hyps))) * math.Exp(-last))
 		c.logZ = math.Log(z)
 	}
 	return nil
