@@ -89,6 +89,9 @@ func fakeTracker(mode string, args []string) {
 				raw(`{"type":"ready","protocol":2,"tracker":"fake","version":"1"}`)
 			case "silent":
 				os.Exit(0)
+			case "bench":
+				enc.Ready(protocol.Ready{Name: "fake-bench", Version: "1", Association: true})
+				w.Flush()
 			default:
 				enc.Ready(protocol.Ready{Name: "fake-" + mode, Version: "1", Covariance: true,
 					Association: true, ManyRuns: mode == "many"})
@@ -151,6 +154,14 @@ func fakeTracker(mode string, args []string) {
 				case "extra":
 					raw(`{"type":"tracks","note":"kept on tape","step":1,"tracks":[]}`)
 					continue
+				}
+			}
+			if mode == "bench" {
+				// About 500 bytes: six tracks without covariance.
+				f.Tracks = f.Tracks[:min(6, len(f.Tracks))]
+				for i := range f.Tracks {
+					f.Tracks[i].Cov = mot.Mat{}
+					f.Tracks[i].Track = "t" + strconv.Itoa(i)
 				}
 			}
 			if mode == "slow" {
