@@ -318,3 +318,21 @@ func BenchmarkAppendScan(b *testing.B) {
 		buf, _ = AppendScan(buf[:0], s)
 	}
 }
+
+// FuzzParseReady checks that no input panics the ready decoder and that
+// accepted replies round-trip.
+func FuzzParseReady(f *testing.F) {
+	f.Add([]byte(`{"type":"ready","protocol":1,"tracker":"x","version":"1","reports":{"covariance":true,"detection":false},"many_runs":true}`))
+	f.Add([]byte(`{"type":"ready","protocol":2,"tracker":""}`))
+	f.Add([]byte(`{"tracker":"\u0000","type":"ready","protocol":1,"reports":{"x":[NaN]}}`))
+	f.Fuzz(func(t *testing.T, line []byte) {
+		r, err := ParseReady(line)
+		if err != nil {
+			return
+		}
+		again, err := ParseReady(AppendReady(nil, r))
+		if err != nil || again != r {
+			t.Fatalf("round trip of %+v gave %+v, %v", r, again, err)
+		}
+	})
+}
