@@ -105,7 +105,16 @@ func Parse(name string, data []byte) (*Spec, error) {
 
 // document parses data as exactly one YAML document and returns its root
 // node, or nil after recording why not.
-func (w *walker) document(data []byte) *yaml.Node {
+func (w *walker) document(data []byte) (root *yaml.Node) {
+	// The decoder reports errors by panicking internally and recovering;
+	// should one escape (older releases had such bugs), it becomes an error
+	// of the file rather than a crash of the program.
+	defer func() {
+		if r := recover(); r != nil {
+			w.errs = append(w.errs, &Error{File: w.file, Msg: fmt.Sprintf("invalid YAML: the decoder failed: %v", r)})
+			root = nil
+		}
+	}()
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var doc yaml.Node
 	err := dec.Decode(&doc)
@@ -131,9 +140,9 @@ func (w *walker) document(data []byte) *yaml.Node {
 		w.errs = append(w.errs, &Error{File: w.file, Msg: "no YAML document; expected a scenario mapping"})
 		return nil
 	}
-	root := doc.Content[0]
+	root = doc.Content[0]
 	if root.Kind == yaml.ScalarNode && root.ShortTag() == "!!null" {
-		w.errs = append(w.errs, &Error{File: w.file, Line: root.Line, Col: root.Column, Msg: "document is empty; expected a scenario mapping starting with 'format: 1'"})
+		w.errs = append(w.errs, &Error{File: w.file, Msg: "document is empty; expected a scenario mapping starting with 'format: 1'"})
 		return nil
 	}
 	return root

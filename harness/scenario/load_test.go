@@ -490,6 +490,32 @@ func TestAliasBombIsCheap(t *testing.T) {
 	}
 }
 
+// TestHostileInput feeds inputs meant to break a parser and checks each
+// gets one clear error line rather than a panic or a runaway.
+func TestHostileInput(t *testing.T) {
+	tests := []struct {
+		name string
+		data string
+		want string
+	}{
+		{"deep flow nesting", strings.Repeat("[", 200000), "deep.yaml: invalid YAML: exceeded max depth of 10000"},
+		{"deep block nesting", "x: " + strings.Repeat("{", 200000), "deep.yaml: invalid YAML: exceeded max depth of 10000"},
+		{"invalid UTF-8", "format: 1\nname: \xff\xfe\n", "deep.yaml: invalid YAML: invalid leading UTF-8 octet"},
+		{"NUL byte", "format: 1\x00\n", "deep.yaml: invalid YAML: control characters are not allowed"},
+		{"tab indentation", "motion:\n\tkind: random-walk\n", "deep.yaml:2: invalid YAML: found character that cannot start any token"},
+		{"only a document marker", "---\n", "deep.yaml: document is empty; expected a scenario mapping starting with 'format: 1'"},
+		{"unknown alias", "format: *nothing\n", "deep.yaml: invalid YAML: unknown anchor 'nothing' referenced"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := Parse("deep.yaml", []byte(tc.data))
+			if err == nil || !strings.HasPrefix(err.Error(), tc.want) {
+				t.Errorf("Parse error = %v, want one starting %q", err, tc.want)
+			}
+		})
+	}
+}
+
 func TestErrorCap(t *testing.T) {
 	var b strings.Builder
 	b.WriteString(goodBase)
