@@ -125,6 +125,10 @@ func TestInterval(t *testing.T) {
 		// Single run: CHECK-VALUES §3.2 table printed to ~1e-9.
 		{2, 1, 0.95, 0.050635616, 7.377758908, 1e-7, "CHECK-VALUES §3.2 single run"},
 		{6, 1, 0.95, 1.237344246, 14.449375335, 1e-7, "CHECK-VALUES §3.2 single run"},
+		// Time-averaged NIS of one run of K steps, (n_z, K) = (2, 200) and
+		// (1, 100): CHECK-VALUES §3.2 [COMP-lib], same formula with K for N.
+		{2, 200, 0.95, 1.7324088268, 2.2865274098, 1e-9, "CHECK-VALUES §3.2 time-averaged NIS"},
+		{1, 100, 0.95, 0.7422192747, 1.2956119719, 1e-9, "CHECK-VALUES §3.2 time-averaged NIS"},
 		// NIST/SEMATECH e-Handbook of Statistical Methods (2011), §1.3.6.7.4,
 		// critical values of the chi-square distribution: ν = 10 lower 2.5%
 		// point 3.247, upper 2.5% point 20.483; ν = 100 lower 74.222, upper

@@ -130,8 +130,9 @@ func (w *Workspace) GOSPA(truth, est [][]float64, p Params) (GOSPA, error) {
 }
 
 // Matches returns, for each truth point of the last successful GOSPA call,
-// the index of the estimate it was matched with (d < c), or −1. The slice
-// belongs to the Workspace and is overwritten by its next call.
+// the index of the estimate it was matched with (d < c), or −1; after a
+// failed GOSPA call every entry is −1. The slice belongs to the Workspace
+// and is overwritten by its next GOSPA call.
 func (w *Workspace) Matches() []int { return w.match }
 
 // OSPA is the OSPA distance between two sets and its split into
