@@ -21,6 +21,9 @@ const (
 	Missing
 	// Extra: something present in got is absent from want.
 	Extra
+	// Association: a track was updated with a different detection; Want
+	// and Got hold the detection ids (mot.NoDetection for a miss).
+	Association
 )
 
 func (k DiffKind) String() string {
@@ -33,6 +36,8 @@ func (k DiffKind) String() string {
 		return "missing"
 	case Extra:
 		return "extra"
+	case Association:
+		return "association"
 	}
 	return fmt.Sprintf("DiffKind(%d)", int(k))
 }
@@ -68,6 +73,8 @@ func (d Diff) String() string {
 			d.Path, d.Want, d.Got, d.Err, d.Bound, d.Rule, d.Excess)
 	case Shape:
 		return fmt.Sprintf("%s: want size %v, got size %v", d.Path, d.Want, d.Got)
+	case Association:
+		return fmt.Sprintf("%s: want detection %v, got detection %v", d.Path, d.Want, d.Got)
 	}
 	return fmt.Sprintf("%s: %s", d.Path, d.Kind)
 }
@@ -167,7 +174,9 @@ func (r *Result) Absent(path string, kind DiffKind) {
 // with (see Align); a tracker track not in names, or whose reference track
 // is absent at a step, is Extra there, and a reference track no tracker
 // track stands for at a step is Missing. Means are compared under p.Mean;
-// covariances under p.Cov when both sides report one (Rows > 0).
+// covariances under p.Cov when both sides report one (Rows > 0); detection
+// ids exactly when both sides report an association (an Association diff;
+// whether a changed association is a near-tie is for the caller to judge).
 // Within a step, value diffs and Missing come in reference order, then
 // Extra in tracker order. Frames are matched by Step; paths read "step 17 / track ferry / mean[2]".
 func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
@@ -200,6 +209,10 @@ func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 				continue
 			}
 			res.Floats(base+" / mean", p.Mean, w.Mean, g.Mean)
+			if w.HasDetection && g.HasDetection && w.Detection != g.Detection {
+				res.Diffs = append(res.Diffs, Diff{Kind: Association, Path: base + " / detection",
+					Want: float64(w.Detection), Got: float64(g.Detection)})
+			}
 			if w.Cov.Rows > 0 && g.Cov.Rows > 0 {
 				res.Mat(base+" / cov", p.Cov, w.Cov, g.Cov)
 			}

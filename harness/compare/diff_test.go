@@ -14,12 +14,12 @@ func TestFrames(t *testing.T) {
 	cov := func(v float64) mot.Mat { m, _ := mot.MatFromRows([][]float64{{v, 0}, {0, 1}}); return m }
 	want := []mot.Frame{
 		{Step: 0, Tracks: []mot.Estimate{{Track: "ferry", Mean: []float64{100, 2, 50}, Cov: cov(4)}}},
-		{Step: 1, Tracks: []mot.Estimate{{Track: "ferry", Mean: []float64{102, 2, 50}, Cov: cov(4)}, {Track: "tug", Mean: []float64{0, 0, 0}}}},
+		{Step: 1, Tracks: []mot.Estimate{{Track: "ferry", Mean: []float64{102, 2, 50}, Cov: cov(4), Detection: 3, HasDetection: true}, {Track: "tug", Mean: []float64{0, 0, 0}}}},
 		{Step: 2, Tracks: nil},
 	}
 	got := []mot.Frame{
 		{Step: 0, Tracks: []mot.Estimate{{Track: "c1", Mean: []float64{100, 2, 50 + 1e-13}, Cov: cov(4)}}},
-		{Step: 1, Tracks: []mot.Estimate{{Track: "c1", Mean: []float64{102, 2, 50.001}, Cov: cov(4.5)}, {Track: "c5", Mean: []float64{1, 1, 1}}}},
+		{Step: 1, Tracks: []mot.Estimate{{Track: "c1", Mean: []float64{102, 2, 50.001}, Cov: cov(4.5), Detection: mot.NoDetection, HasDetection: true}, {Track: "c5", Mean: []float64{1, 1, 1}}}},
 		{Step: 3, Tracks: nil},
 	}
 	p := Profile{Mean: Rule{Abs: 1e-9}, Cov: Rule{Rel: 0.01}}
@@ -27,6 +27,7 @@ func TestFrames(t *testing.T) {
 	ignore := cmpopts.IgnoreFields(Diff{}, "Err", "Bound", "Excess", "ULPs", "Rule")
 	wantDiffs := []Diff{
 		{Kind: Value, Path: "step 1 / track ferry / mean[2]", Want: 50, Got: 50.001},
+		{Kind: Association, Path: "step 1 / track ferry / detection", Want: 3, Got: -1},
 		{Kind: Value, Path: "step 1 / track ferry / cov[0,0]", Want: 4, Got: 4.5},
 		{Kind: Missing, Path: "step 1 / track tug"},
 		{Kind: Extra, Path: "step 1 / tracker track c5"},

@@ -75,6 +75,14 @@ func ModuleVersion() string {
 	return ""
 }
 
+// NewHeader returns the header of a golden written now by this binary: the
+// format version, the trackgate module version and the platform are filled
+// in from the build information.
+func NewHeader(kind Kind, scenario, scenarioHash string, run int, seed uint64, protocol int) Header {
+	return Header{Format: FormatVersion, Kind: kind, Scenario: scenario, ScenarioHash: scenarioHash,
+		Run: run, Seed: seed, Protocol: protocol, Trackgate: ModuleVersion(), Platform: ThisPlatform()}
+}
+
 // Header is the first line of every golden file.
 type Header struct {
 	// Format is the golden format version (FormatVersion).

@@ -3,6 +3,8 @@ package golden
 import (
 	"os"
 	"path/filepath"
+	"runtime"
+	"strings"
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
@@ -162,5 +164,46 @@ func TestFreshness(t *testing.T) {
 		if got := h.Check(tt.name, tt.hash); got != tt.want {
 			t.Errorf("Check(%q, %q) = %v, want %v", tt.name, tt.hash, got, tt.want)
 		}
+	}
+}
+
+func TestReadFresh(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "g.jsonl")
+	f := File{Header: NewHeader(Metrics, "breakwater_night", "abc123", 2, 99, 1), Metrics: []Metric{{Name: "gospa", Step: -1, Value: 2}}}
+	if err := Write(path, f); err != nil {
+		t.Fatal(err)
+	}
+	got, fr, err := ReadFresh(path, "breakwater_night", "abc123")
+	if err != nil || fr != Fresh || len(got.Metrics) != 1 {
+		t.Fatalf("ReadFresh(fresh) = %+v, %v, %v", got, fr, err)
+	}
+	if got.Header.Platform.Go != runtime.Version() || got.Header.Platform.Arch != runtime.GOARCH {
+		t.Errorf("platform = %+v", got.Header.Platform)
+	}
+	if runtime.GOARCH == "amd64" && got.Header.Platform.AMD64 == "" {
+		t.Errorf("GOAMD64 level not recorded on amd64")
+	}
+	got, fr, err = ReadFresh(path, "breakwater_night", "def456")
+	if err != nil || fr != Stale || len(got.Metrics) != 0 || got.Header.Kind != "" {
+		t.Errorf("ReadFresh(changed scenario) = %+v, %v, %v; want Stale and an empty File", got, fr, err)
+	}
+	if _, fr, _ = ReadFresh(path, "harbour_calm", "abc123"); fr != Foreign {
+		t.Errorf("ReadFresh(other scenario) = %v, want Foreign", fr)
+	}
+	if _, _, err = ReadFresh(filepath.Join(dir, "absent.jsonl"), "x", "y"); err == nil {
+		t.Error("ReadFresh(missing file) succeeded")
+	}
+}
+
+func TestDuplicateMetric(t *testing.T) {
+	src := `{"golden":1,"kind":"metrics","scenario":"s","scenario_sha256":"ab","run":0,"seed":1,"go":"g","goos":"o","goarch":"a"}
+{"metric":"gospa","step":1,"value":1}
+{"metric":"gospa","value":1}
+{"metric":"gospa","step":1,"value":2}
+`
+	_, err := Read(strings.NewReader(src), "m.jsonl")
+	if err == nil || err.Error() != `m.jsonl:4: metric "gospa" step 1 given twice (first at line 2)` {
+		t.Errorf("Read error = %v", err)
 	}
 }

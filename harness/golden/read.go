@@ -157,6 +157,11 @@ func Read(r io.Reader, name string) (File, error) {
 		return File{}, &lineError{name, n, fmt.Sprintf(format, args...)}
 	}
 	lastStep := math.MinInt
+	type metricKey struct {
+		name string
+		step int
+	}
+	seenMetric := map[metricKey]int{}
 	for sc.Scan() {
 		n++
 		line := bytes.TrimSuffix(sc.Bytes(), []byte("\r"))
@@ -192,6 +197,11 @@ func Read(r io.Reader, name string) (File, error) {
 			if msg != "" {
 				return fail("%s", msg)
 			}
+			key := metricKey{m.Name, m.Step}
+			if prev, dup := seenMetric[key]; dup {
+				return fail("metric %q step %d given twice (first at line %d)", m.Name, m.Step, prev)
+			}
+			seenMetric[key] = n
 			f.Metrics = append(f.Metrics, m)
 			continue
 		}
@@ -210,6 +220,20 @@ func Read(r io.Reader, name string) (File, error) {
 		return File{}, &lineError{name, 1, "empty file; expected a header line"}
 	}
 	return f, nil
+}
+
+// ReadFresh reads the golden at path and checks it against the current
+// scenario. Only a Fresh golden is returned; for a Stale or Foreign one the
+// File is empty, so that it cannot be compared by mistake.
+func ReadFresh(path, scenario, hash string) (File, Freshness, error) {
+	f, err := ReadFile(path)
+	if err != nil {
+		return File{}, Fresh, err
+	}
+	if fr := f.Header.Check(scenario, hash); fr != Fresh {
+		return File{}, fr, nil
+	}
+	return f, Fresh, nil
 }
 
 // ReadFile reads the golden file at path.
