@@ -181,6 +181,32 @@ func TestStockScenarioDetails(t *testing.T) {
 			break
 		}
 	}
+	// The boundary detection of step 0: with S = P + R = diag(2, 2), its
+	// squared Mahalanobis distance from float-west must equal the gate
+	// γ = −2 ln(1 − P_G), the χ²₂ quantile (χ² with two degrees of freedom
+	// is the exponential distribution with mean 2: Johnson, Kotz &
+	// Balakrishnan, "Continuous Univariate Distributions", vol. 1, 2nd ed.,
+	// 1994, ch. 18 — chapter from memory), to within a few ulps.
+	gamma := -2 * math.Log(1-tie.Model.GateProb)
+	west := tie.Objects[0]
+	s2 := west.Cov.At(0, 0) + tie.Model.R.At(0, 0)
+	onBoundary := 0
+	for _, sc := range tie.Scripted {
+		for _, d := range sc.Detections {
+			if sc.Step != 0 || d.Object != "" {
+				continue
+			}
+			dx, dy := d.Z[0]-west.Mean[0], d.Z[1]-west.Mean[2]
+			if d2 := (dx*dx + dy*dy) / s2; math.Abs(d2-gamma) <= 4e-15*gamma {
+				onBoundary++
+			} else {
+				t.Errorf("tie: step-0 clutter detection at %v has d² = %.17g, gate %.17g", d.Z, d2, gamma)
+			}
+		}
+	}
+	if onBoundary != 1 {
+		t.Errorf("tie: %d detections on the gate boundary at step 0, want 1", onBoundary)
+	}
 	// The turn scenario's model is the motion package's constant turn.
 	turn := load("turn-coastal-aircraft")
 	F, Q := motion.ConstantTurn(turn.Model.Interval, turn.Motion.TurnRate, turn.Motion.AccelNoise)
