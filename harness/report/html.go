@@ -25,6 +25,15 @@ func HTML(w io.Writer, s *result.Suite) error {
 	for i := range s.Scenarios {
 		page.Scenarios = append(page.Scenarios, htmlScenarioOf(&s.Scenarios[i], i))
 	}
+	for i := range page.Scenarios {
+		for j := range page.Scenarios[i].Problems {
+			p := &page.Scenarios[i].Problems[j]
+			for k := range p.Lines {
+				p.Lines[k] = visible(p.Lines[k])
+			}
+			p.Title = visible(p.Title)
+		}
+	}
 	return pageTemplate.Execute(w, page)
 }
 
@@ -90,6 +99,9 @@ func htmlScenarioOf(sc *result.Scenario, i int) htmlScenario {
 				p.Lines = append(p.Lines, divergenceLine("tie", &ch.Ties[ti]))
 			}
 			p.Diffs = worstDiffs(ch.Diffs, 8)
+			for k := range p.Diffs {
+				p.Diffs[k].Path, p.Diffs[k].Tolerance = visible(p.Diffs[k].Path), visible(p.Diffs[k].Tolerance)
+			}
 			if n := len(ch.Diffs) + ch.Truncated; n > len(p.Diffs) {
 				p.DiffNote = fmt.Sprintf("the %d largest of %d differences", len(p.Diffs), n)
 			}
@@ -180,21 +192,40 @@ func pickRun(sc *result.Scenario) *result.Run {
 type marks struct {
 	first     int // -1 when none
 	firstKind string
+	objects   []string // named in the first divergence
 	ties      []int
+}
+
+// involved returns the tracks whose ids name one of the objects (equal, or
+// ending in "-"+object as in "T-rib"), or all tracks when none does.
+func involved(ps []result.Path, objects []string) []result.Path {
+	var out []result.Path
+	for _, p := range ps {
+		for _, o := range objects {
+			if p.ID == o || strings.HasSuffix(p.ID, "-"+o) {
+				out = append(out, p)
+				break
+			}
+		}
+	}
+	if len(out) == 0 {
+		return ps
+	}
+	return out
 }
 
 func divergenceMarks(r *result.Run) marks {
 	m := marks{first: -1}
 	for _, c := range r.Checks {
 		if c.First != nil && (m.first < 0 || c.First.Step < m.first) {
-			m.first, m.firstKind = c.First.Step, c.First.Kind
+			m.first, m.firstKind, m.objects = c.First.Step, c.First.Kind, c.First.Objects
 		}
 		for _, t := range c.Ties {
 			m.ties = append(m.ties, t.Step)
 		}
 	}
 	if r.Fault != nil && (m.first < 0 || r.Fault.Step < m.first) {
-		m.first, m.firstKind = r.Fault.Step, "fault"
+		m.first, m.firstKind, m.objects = r.Fault.Step, "fault", nil
 	}
 	return m
 }
@@ -310,9 +341,11 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 			s.polyline(class, what+" "+p.ID, xs, ys)
 		}
 	}
+	// The reference is drawn dashed over the tracker, so both show where
+	// they agree.
 	drawPaths(tr.Truth, "truth", "truth")
-	drawPaths(tr.Reference, "ref", "reference track")
 	drawPaths(tr.Tracker, "trk", "tracker track")
+	drawPaths(tr.Reference, "ref", "reference track")
 	for _, p := range tr.Truth {
 		if n := len(p.Points); n > 0 {
 			pt := p.Points[n-1]
@@ -322,7 +355,7 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 		}
 	}
 	if m.first >= 0 {
-		for _, p := range tr.Tracker {
+		for _, p := range involved(tr.Tracker, m.objects) {
 			for _, pt := range p.Points {
 				if pt.Step == m.first && finite(pt.X, pt.Y) {
 					s.add(`<circle class="diverge" cx="%s" cy="%s" r="7"><title>first divergence, step %d (%s)</title></circle>`, f1(f.px(pt.X)), f1(f.py(pt.Y)), m.first, esc(m.firstKind))
@@ -401,8 +434,8 @@ func timePlot(tr *result.Trace, m marks) template.HTML {
 		}
 	}
 	lines(tr.Truth, "truth", "truth")
-	lines(tr.Reference, "ref", "reference track")
 	lines(tr.Tracker, "trk", "tracker track")
+	lines(tr.Reference, "ref", "reference track")
 	for _, p := range tr.Truth {
 		if n := len(p.Points); n > 0 && finite(p.Points[n-1].X) {
 			pt := p.Points[n-1]

@@ -39,16 +39,16 @@ type xmlProperty struct {
 }
 
 type xmlCase struct {
-	ClassName  string        `xml:"classname,attr"`
-	Name       string        `xml:"name,attr"`
-	File       string        `xml:"file,attr,omitempty"`
-	Time       string        `xml:"time,attr"`
-	Properties *xmlProps     `xml:"properties,omitempty"`
-	Failure    *xmlProblem   `xml:"failure"`
-	Error      *xmlProblem   `xml:"error"`
-	Skipped    *xmlProblem   `xml:"skipped"`
-	SystemOut  string        `xml:"system-out,omitempty"`
-	SystemErr  string        `xml:"system-err,omitempty"`
+	ClassName  string      `xml:"classname,attr"`
+	Name       string      `xml:"name,attr"`
+	File       string      `xml:"file,attr,omitempty"`
+	Time       string      `xml:"time,attr"`
+	Properties *xmlProps   `xml:"properties,omitempty"`
+	Failure    *xmlProblem `xml:"failure"`
+	Error      *xmlProblem `xml:"error"`
+	Skipped    *xmlProblem `xml:"skipped"`
+	SystemOut  string      `xml:"system-out,omitempty"`
+	SystemErr  string      `xml:"system-err,omitempty"`
 }
 
 type xmlProps struct {

@@ -80,7 +80,7 @@ type frame struct {
 	left, top, width, height float64
 	// Data range shown.
 	x0, x1, y0, y1 float64
-	xstep, ystep     float64
+	xstep, ystep   float64
 }
 
 func (f *frame) px(x float64) float64 { return f.left + (x-f.x0)/(f.x1-f.x0)*f.width }
