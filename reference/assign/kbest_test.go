@@ -169,3 +169,69 @@ func TestKBestEdges(t *testing.T) {
 		t.Errorf("KBest(short cost) succeeded, want an error")
 	}
 }
+
+// TestInputsUnchanged: neither solver writes to the caller's matrix.
+func TestInputsUnchanged(t *testing.T) {
+	rng := testRand(t, 7)
+	for _, sh := range [][2]int{{5, 5}, {3, 6}, {6, 3}} {
+		c := randomMatrix(rng, sh[0], sh[1], true, 0.2)
+		keep := append([]float64(nil), c...)
+		var w Workspace
+		w.Solve(c, sh[0], sh[1], make([]int, sh[0]))
+		w.SolveMax(c[:0:0], 0, 0, nil)
+		KBest(c, sh[0], sh[1], 20)
+		for k := range c {
+			if c[k] != keep[k] && !(math.IsNaN(c[k]) && math.IsNaN(keep[k])) {
+				t.Fatalf("%v: cost[%d] changed from %v to %v", sh, k, keep[k], c[k])
+			}
+		}
+	}
+}
+
+// FuzzKBest decodes bytes into a small matrix (with +Inf entries) and a k,
+// and compares the ranking with exhaustive enumeration.
+func FuzzKBest(f *testing.F) {
+	f.Add([]byte{3, 3, 7, 8, 4, 7, 5, 2, 3, 9, 4, 8})
+	f.Add([]byte{2, 4, 3, 255, 1, 2, 255, 255, 3, 0, 0})
+	f.Add([]byte{5, 2, 9, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		if len(data) < 3 {
+			return
+		}
+		rows, cols, k := int(data[0]%6), int(data[1]%6), int(data[2]%40)
+		data = data[3:]
+		c := make([]float64, rows*cols)
+		for i := range c {
+			if i < len(data) {
+				if data[i] >= 240 {
+					c[i] = inf
+				} else {
+					c[i] = float64(data[i] % 8)
+				}
+			}
+		}
+		got, err := KBest(c, rows, cols, k)
+		if k == 0 {
+			if err != nil || got != nil {
+				t.Fatalf("KBest(k=0) = %v, %v", got, err)
+			}
+			return
+		}
+		all := enumerate(c, rows, cols)
+		if len(all) == 0 {
+			if !errors.Is(err, ErrInfeasible) {
+				t.Fatalf("KBest(%d×%d %v) = %v, %v, want ErrInfeasible", rows, cols, c, got, err)
+			}
+			return
+		}
+		if err != nil || len(got) != min(k, len(all)) {
+			t.Fatalf("KBest(%d×%d %v, %d) = %d hypotheses, %v; want %d", rows, cols, c, k, len(got), err, min(k, len(all)))
+		}
+		for i, h := range got {
+			if !near(h.Cost, all[i].Cost) {
+				t.Fatalf("KBest(%d×%d %v)[%d].Cost = %v, want %v", rows, cols, c, i, h.Cost, all[i].Cost)
+			}
+		}
+		checkRanking(t, c, rows, cols, got)
+	})
+}
