@@ -153,6 +153,10 @@ type Consistency struct {
 // chi-square interval for dim degrees of freedom per value, with
 // probability conf. A zero conf means 0.95. It returns an error naming the
 // step of the first value that is negative or not finite.
+//
+// For the time-averaged test of a single run (K steps, K·ε̄ ~ χ²_{K·dim},
+// exact for NIS, approximate for NEES whose values are correlated in time),
+// pass all K values as one step.
 func CheckConsistency(values [][]float64, dim int, conf float64) (Consistency, error) {
 	if conf == 0 {
 		conf = 0.95

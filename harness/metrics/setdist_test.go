@@ -218,6 +218,7 @@ func dist(x, y []float64) float64 {
 // (FUSION 2017) for α = 2, with the plain distance and no assignment solver.
 func bruteGOSPAPower(x, y pts, c, p float64) float64 {
 	cp := math.Pow(c, p)
+	dp := powDist(x, y, p, math.Inf(1))
 	used := make([]bool, len(y))
 	best := math.Inf(1)
 	var rec func(i int, acc float64, matched int)
@@ -230,13 +231,56 @@ func bruteGOSPAPower(x, y pts, c, p float64) float64 {
 		for j := range y {
 			if !used[j] {
 				used[j] = true
-				rec(i+1, acc+math.Pow(dist(x[i], y[j]), p), matched+1)
+				rec(i+1, acc+dp[i][j], matched+1)
 				used[j] = false
 			}
 		}
 	}
 	rec(0, 0, 0)
 	return best
+}
+
+// bruteGOSPADefinition enumerates every injection π of the smaller set
+// into the larger and returns min Σ d⁽ᶜ⁾ᵖ + (cᵖ/α)·(n − m) with α = 2:
+// Definition 1 of Rahmathullah et al. (FUSION 2017). Agreement with
+// bruteGOSPAPower checks Proposition 1 (the partial-matching form), which
+// CHECK-VALUES §1.2 states from memory.
+func bruteGOSPADefinition(x, y pts, c, p float64) float64 {
+	if len(x) > len(y) {
+		x, y = y, x
+	}
+	cp := math.Pow(c, p)
+	dp := powDist(x, y, p, c)
+	used := make([]bool, len(y))
+	best := math.Inf(1)
+	var rec func(i int, acc float64)
+	rec = func(i int, acc float64) {
+		if i == len(x) {
+			best = math.Min(best, acc)
+			return
+		}
+		for j := range y {
+			if !used[j] {
+				used[j] = true
+				rec(i+1, acc+dp[i][j])
+				used[j] = false
+			}
+		}
+	}
+	rec(0, 0)
+	return best + cp/2*float64(len(y)-len(x))
+}
+
+// powDist returns min(d(xᵢ, yⱼ), c)ᵖ for every pair.
+func powDist(x, y pts, p, c float64) [][]float64 {
+	out := make([][]float64, len(x))
+	for i := range x {
+		out[i] = make([]float64, len(y))
+		for j := range y {
+			out[i][j] = math.Pow(math.Min(dist(x[i], y[j]), c), p)
+		}
+	}
+	return out
 }
 
 // bruteOSPA enumerates every injection of the smaller set into the larger:
@@ -306,8 +350,12 @@ func TestAgainstBruteForce(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if want := bruteGOSPAPower(x, y, c, p); !closeRel(g.Power, want, 1e-9) {
+		want := bruteGOSPAPower(x, y, c, p)
+		if !closeRel(g.Power, want, 1e-9) {
 			t.Fatalf("case %d: GOSPA^p(%v, %v, c=%g, p=%g) = %.15g, brute force %.15g", i, x, y, c, p, g.Power, want)
+		}
+		if def := bruteGOSPADefinition(x, y, c, p); !closeRel(def, want, 1e-9) {
+			t.Fatalf("case %d: Definition 1 gives %.15g, Proposition 1 %.15g", i, def, want)
 		}
 		checkSplit(t, g, len(x), len(y), c, p)
 		if !closeRel(math.Pow(o.Localisation, p)+math.Pow(o.Cardinality, p), math.Pow(o.Value, p), 1e-9) {
