@@ -25,5 +25,12 @@
 // WriteFile writes atomically: a hidden temporary file in the same folder,
 // fsync, rename over the target, fsync of the folder. A crash or kill at any
 // point leaves either the old file or the new one, never a mix. Policy
-// decides whether a golden may be written at all (never in CI).
+// decides whether a golden may be written at all (never in CI), and
+// Policy.Apply writes only what it allows.
+//
+// # Layout
+//
+// Path and ParsePath map between an ID (scenario, tracker, run, kind) and a
+// file under the golden root; Scan lists a root, Tree.Orphans finds goldens
+// no scenario uses any more and Tree.Remove deletes them on request.
 package golden

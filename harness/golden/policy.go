@@ -97,3 +97,18 @@ func (p Policy) Decide(s Status) Action {
 	}
 	return Rewrite
 }
+
+// Apply carries out the policy for the golden at path whose check found
+// status s: it writes f there atomically when the policy says Rewrite and
+// touches nothing otherwise. It returns the action taken; Fail is a
+// verdict, not an error. Errors are only for a write that failed.
+func (p Policy) Apply(path string, s Status, f File) (Action, error) {
+	a := p.Decide(s)
+	if a != Rewrite {
+		return a, nil
+	}
+	if err := Write(path, f); err != nil {
+		return a, err
+	}
+	return a, nil
+}
