@@ -227,6 +227,17 @@ func (e *engine) rank(cm *CostMatrix, c *cluster) error {
 		if hyps, err = assign.KBest(cost, nr, cols, kr); err != nil {
 			return err
 		}
+		// A hypothesis costs the sum of its entries, added in row order, so
+		// that equal events cost the same bits; near-ties that the solver
+		// ranked by a differently rounded total are put back in order.
+		for q := range hyps {
+			var sum float64
+			for a, col := range hyps[q].RowToCol {
+				sum += cost[a*cols+col]
+			}
+			hyps[q].Cost = sum
+		}
+		slices.SortStableFunc(hyps, func(a, b assign.Hypothesis) int { return cmp.Compare(a.Cost, b.Cost) })
 	}
 	if len(hyps) == 0 {
 		return assign.ErrInfeasible
