@@ -17,10 +17,10 @@ import (
 func cvPlane(T, q, r, pd, lambda float64) mot.Model {
 	a, b, c := q*T*T*T*T/4, q*T*T*T/2, q*T*T
 	return mot.Model{StateDim: 4, MeasDim: 2, Interval: T,
-		F: mot.Mat{Rows: 4, Cols: 4, Data: []float64{1, T, 0, 0, 0, 1, 0, 0, 0, 0, 1, T, 0, 0, 0, 1}},
-		Q: mot.Mat{Rows: 4, Cols: 4, Data: []float64{a, b, 0, 0, b, c, 0, 0, 0, 0, a, b, 0, 0, b, c}},
-		H: mot.Mat{Rows: 2, Cols: 4, Data: []float64{1, 0, 0, 0, 0, 0, 1, 0}},
-		R: mot.Mat{Rows: 2, Cols: 2, Data: []float64{r, 0, 0, r}},
+		F:  mot.Mat{Rows: 4, Cols: 4, Data: []float64{1, T, 0, 0, 0, 1, 0, 0, 0, 0, 1, T, 0, 0, 0, 1}},
+		Q:  mot.Mat{Rows: 4, Cols: 4, Data: []float64{a, b, 0, 0, b, c, 0, 0, 0, 0, a, b, 0, 0, b, c}},
+		H:  mot.Mat{Rows: 2, Cols: 4, Data: []float64{1, 0, 0, 0, 0, 0, 1, 0}},
+		R:  mot.Mat{Rows: 2, Cols: 2, Data: []float64{r, 0, 0, r}},
 		PD: pd, ClutterDensity: lambda, GateProb: 0.999,
 	}
 }
