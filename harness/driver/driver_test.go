@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -215,9 +216,29 @@ func TestExtraFields(t *testing.T) {
 	}
 }
 
+// TestHarnessFault checks that a job the harness cannot encode (a NaN
+// measurement) is reported as a harness fault, not blamed on the tracker.
+func TestHarnessFault(t *testing.T) {
+	job := warehouseJob(0, 3)
+	job.Run.Scans[2].Detections[1].Z[0] = math.NaN()
+	res := Run(context.Background(), fakeConfig("good"), job)
+	if res.Fault == nil || res.Fault.Class != Harness || res.Fault.Step != 2 || !strings.Contains(res.Fault.Detail, "detections[1].z[0]") {
+		t.Fatalf("fault %v, want a harness fault at step 2 naming detections[1].z[0]", res.Fault)
+	}
+	if len(res.Frames) != 2 {
+		t.Errorf("%d frames kept, want the 2 answered before the fault", len(res.Frames))
+	}
+}
+
 func TestGoodRun(t *testing.T) {
 	job := warehouseJob(2, 5)
-	res := Run(context.Background(), fakeConfig("good"), job)
+	cfg := fakeConfig("good")
+	cfg.Dir = t.TempDir()
+	cfg.Env = append(cfg.Env, "TRACKGATE_DRIVER_FAKE_PWD=1")
+	res := Run(context.Background(), cfg, job)
+	if want := "working in " + cfg.Dir + "\n"; string(res.Stderr) != want {
+		t.Errorf("stderr %q, want %q (the working directory and environment given)", res.Stderr, want)
+	}
 	if res.Fault != nil {
 		t.Fatal(res.Fault)
 	}

@@ -57,6 +57,10 @@ func fakeTracker(mode string, args []string) {
 		fakeBatch(mode, args)
 		return
 	}
+	if os.Getenv("TRACKGATE_DRIVER_FAKE_PWD") != "" {
+		wd, _ := os.Getwd()
+		fmt.Fprintln(os.Stderr, "working in", wd)
+	}
 	dec := protocol.NewDecoder(os.Stdin, "stdin", 0)
 	w := bufio.NewWriter(os.Stdout)
 	enc := protocol.NewEncoder(w)
