@@ -46,3 +46,26 @@ func ExamplePaired_Compare() {
 	// estimate 1.00, interval [0.08, 1.92], pass false
 	// with minimum effect 0.5: pass true
 }
+
+// Two Monte Carlo runs of a filter with a scalar state. The average of two
+// χ²₁ values is checked against χ²₂/2, whose quantiles have the closed form
+// −ln(1 − q): the 95% interval is [−ln 0.975, −ln 0.025] = [0.025, 3.689].
+// Step 0 averages 1 (inside), step 1 averages 5 (outside).
+func ExampleCheckConsistency() {
+	nees := [][]float64{{0.5, 1.5}, {4, 6}}
+	c, err := metrics.CheckConsistency(nees, 1, 0.95)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, s := range c.Steps {
+		fmt.Printf("step %d: mean %.2f in [%.3f, %.3f]: %v\n", s.Step, s.Mean, s.Lo, s.Hi, s.Inside)
+	}
+	fmt.Println("inside fraction:", c.InsideFraction)
+	fmt.Println(metrics.ConsistentSteps("nees", c, 0.9).Pass)
+	// Output:
+	// step 0: mean 1.00 in [0.025, 3.689]: true
+	// step 1: mean 5.00 in [0.025, 3.689]: false
+	// inside fraction: 0.5
+	// false
+}

@@ -145,6 +145,19 @@ func TestInterval(t *testing.T) {
 				tt.dim, tt.runs, tt.conf, lo, hi, tt.lo, tt.hi, tt.source)
 		}
 	}
+	// Closed form for 2 degrees of freedom: χ²₂ is the exponential law with
+	// mean 2, so its quantile is −2·ln(1 − q) (common practice).
+	for _, conf := range []float64{0.5, 0.9, 0.95, 0.99} {
+		lo, hi := Interval(2, 1, conf)
+		wlo, whi := -2*math.Log((1+conf)/2), -2*math.Log((1-conf)/2)
+		if !closeRel(lo, wlo, 1e-9) || !closeRel(hi, whi, 1e-9) {
+			t.Errorf("Interval(2, 1, %g) = [%.12g, %.12g], want [%.12g, %.12g]", conf, lo, hi, wlo, whi)
+		}
+		lo, hi = Interval(1, 2, conf)
+		if !closeRel(lo, wlo/2, 1e-9) || !closeRel(hi, whi/2, 1e-9) {
+			t.Errorf("Interval(1, 2, %g) = [%.12g, %.12g], want [%.12g, %.12g]", conf, lo, hi, wlo/2, whi/2)
+		}
+	}
 	// Bar-Shalom, Li, Kirubarajan (2001) §5.4.2 print the 95% region for
 	// n = 2, N = 50 as [1.5, 2.6] (from memory, CHECK-VALUES §3.1 [SRC-mem]).
 	lo, hi := Interval(2, 50, 0.95)
