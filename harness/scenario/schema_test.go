@@ -1,11 +1,15 @@
 package scenario
 
 import (
+	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
+
+	"github.com/google/go-cmp/cmp"
 
 	"github.com/santhosh-tekuri/jsonschema/v6"
 	"go.yaml.in/yaml/v3"
@@ -179,5 +183,67 @@ func TestSchemaAgreesWithLoaderOnBadFiles(t *testing.T) {
 				t.Errorf("schema rejects %s (%s):\n%v", f, verdict, err)
 			}
 		})
+	}
+}
+
+// TestSchemaKeysMatchLoader checks that the schema and the loader know the
+// same keys at every level, so that neither drifts when a key is added.
+func TestSchemaKeysMatchLoader(t *testing.T) {
+	data, err := os.ReadFile(schemaPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal(data, &doc); err != nil {
+		t.Fatal(err)
+	}
+	get := func(path ...string) map[string]any {
+		t.Helper()
+		var cur any = doc
+		for _, p := range path {
+			m, ok := cur.(map[string]any)
+			if !ok {
+				t.Fatalf("schema: %v is not an object", path)
+			}
+			cur = m[p]
+		}
+		m, ok := cur.(map[string]any)
+		if !ok {
+			t.Fatalf("schema: %v is not an object", path)
+		}
+		return m
+	}
+	keys := func(m map[string]any) []string {
+		out := make([]string, 0, len(m))
+		for k := range m {
+			out = append(out, k)
+		}
+		slices.Sort(out)
+		return out
+	}
+	sorted := func(l []string) []string {
+		l = slices.Clone(l)
+		slices.Sort(l)
+		return l
+	}
+	tests := []struct {
+		name   string
+		schema []string
+		loader []string
+	}{
+		{"top level", []string{"properties"}, topKeys},
+		{"motion", []string{"$defs", "motion", "properties"}, motionKeys},
+		{"sensor", []string{"properties", "sensor", "properties"}, sensorKeys},
+		{"clutter", []string{"properties", "clutter", "properties"}, clutterKeys},
+		{"clutter region", []string{"properties", "clutter", "properties", "region", "properties"}, regionKeys},
+		{"object", []string{"$defs", "object", "properties"}, objectKeys},
+		{"prior", []string{"$defs", "object", "properties", "prior", "properties"}, priorKeys},
+		{"scripted scan", []string{"properties", "scripted", "items", "properties"}, scriptKeys},
+		{"scripted detection", []string{"properties", "scripted", "items", "properties", "detections", "items", "properties"}, detKeys},
+	}
+	for _, tc := range tests {
+		if diff := cmp.Diff(sorted(tc.loader), keys(get(tc.schema...))); diff != "" {
+			t.Errorf("%s: keys differ (-loader +schema):\n%s", tc.name, diff)
+		}
 	}
 }
