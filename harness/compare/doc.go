@@ -15,9 +15,11 @@
 // infinity. The relative term uses M = max(|want|, |got|), so the verdict is
 // symmetric in want and got: when a port is certified against a reference
 // neither side is privileged, and swapping them must not change the answer.
-// This is Knuth's "approximately equal" (≈) relation; the min-based form
-// (Knuth's "essentially equal", ~) is stricter and not symmetric in spirit
-// with an absolute floor.
+// This is Knuth's "approximately equal" (≈) relation. The min-based form
+// (Knuth's "essentially equal", ~) is also symmetric but stricter where one
+// value is much smaller than the other; with max, two neighbouring normal
+// floats always agree once Rel ≥ 2⁻⁵², which makes Rel read as a number of
+// ULPs of the larger value.
 //
 // The ULP distance of a and b counts the float64 values strictly above
 // min(a, b) up to and including max(a, b): adjacent floats are 1 apart, +0 and

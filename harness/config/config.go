@@ -192,7 +192,9 @@ func (t Tracker) Environ() []string {
 
 // For returns the settings that apply to the named scenario: the tolerance
 // profile (the project-wide profile and patches, then every matching
-// override in file order) and the tie margin.
+// override in file order) and the tie margin. Parse accepts only known
+// profile names; in a Config built in code an unknown name stands for the
+// strictest rules, those of compare.BitExact.
 func (c Config) For(scenario string) (compare.Profile, float64) {
 	c = c.withDefaults()
 	tol := []Tolerance{c.Tolerance}

@@ -1,6 +1,7 @@
 package golden
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"runtime"
@@ -325,8 +326,21 @@ func appendMetric(b []byte, m Metric) []byte {
 	return e.b
 }
 
+// trackerFits returns a message when a tracker name does not fit the kind:
+// Output needs one, Tape and Reference must not have one.
+func trackerFits(k Kind, tracker string) string {
+	switch {
+	case k == Output && tracker == "":
+		return "a tracker output golden needs a tracker name"
+	case (k == Tape || k == Reference) && tracker != "":
+		return fmt.Sprintf("a %s golden has no tracker, got %q", k, tracker)
+	}
+	return ""
+}
+
 // Marshal returns f in the golden format. It reports an error when the
-// header is incomplete or a record does not fit the kind.
+// header is incomplete, a record does not fit the kind, or a name is not
+// valid UTF-8 (it would not survive the trip through JSON).
 func Marshal(f File) ([]byte, error) {
 	h := f.Header
 	if h.Format != FormatVersion {
@@ -337,6 +351,14 @@ func Marshal(f File) ([]byte, error) {
 	}
 	if h.Scenario == "" || h.ScenarioHash == "" {
 		return nil, fmt.Errorf("golden: header needs a scenario name and hash")
+	}
+	if msg := trackerFits(h.Kind, h.Tracker); msg != "" {
+		return nil, errors.New("golden: " + msg)
+	}
+	for _, s := range []string{h.Scenario, h.ScenarioHash, h.Tracker, h.Trackgate} {
+		if !utf8.ValidString(s) {
+			return nil, fmt.Errorf("golden: header text %q is not valid UTF-8", s)
+		}
 	}
 	n := 0
 	switch h.Kind {
@@ -350,8 +372,28 @@ func Marshal(f File) ([]byte, error) {
 	if n > 0 {
 		return nil, fmt.Errorf("golden: a %s file holds %d records of another kind", h.Kind, n)
 	}
+	for _, s := range f.Steps {
+		for _, o := range s.Truth.Objects {
+			if !utf8.ValidString(o.Object) {
+				return nil, fmt.Errorf("golden: step %d: object id %q is not valid UTF-8", s.Scan.Step, o.Object)
+			}
+		}
+		for _, o := range s.Truth.Origins {
+			if !utf8.ValidString(o.Object) {
+				return nil, fmt.Errorf("golden: step %d: object id %q is not valid UTF-8", s.Scan.Step, o.Object)
+			}
+		}
+	}
+	for _, m := range f.Metrics {
+		if !utf8.ValidString(m.Name) {
+			return nil, fmt.Errorf("golden: metric name %q is not valid UTF-8", m.Name)
+		}
+	}
 	for _, fr := range f.Frames {
 		for _, t := range fr.Tracks {
+			if !utf8.ValidString(t.Track) {
+				return nil, fmt.Errorf("golden: step %d: track name %q is not valid UTF-8", fr.Step, t.Track)
+			}
 			if t.Cov.Rows*t.Cov.Cols != len(t.Cov.Data) {
 				return nil, fmt.Errorf("golden: step %d track %q: covariance %d×%d holds %d values", fr.Step, t.Track, t.Cov.Rows, t.Cov.Cols, len(t.Cov.Data))
 			}

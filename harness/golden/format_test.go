@@ -260,6 +260,8 @@ func TestReadErrors(t *testing.T) {
 		{"header run type", `{"golden":1,"kind":"tape","scenario":"s","scenario_sha256":"a","run":"zero"}`, `field "run": expected int, got JSON string`},
 		{"no hash", `{"golden":1,"kind":"tape","scenario":"s"}`, `missing field "scenario_sha256"`},
 		{"blank line", h + "\n", "f.jsonl:2: empty line"},
+		{"tracker on reference", strings.Replace(h, `"run":0`, `"tracker":"quay","run":0`, 1), `f.jsonl:1: header: field "tracker": a reference golden has no tracker, got "quay"`},
+		{"output without tracker", strings.Replace(h, "reference", "output", 1), `f.jsonl:1: header: field "tracker": a tracker output golden needs a tracker name`},
 		{"mean string", h + `{"step":0,"tracks":[{"track":"a","mean":["x"]}]}`, `f.jsonl:2: expected a number, "NaN", "+Inf" or "-Inf", got "x"`},
 		{"mean missing", h + `{"step":0,"tracks":[{"track":"a"}]}`, `f.jsonl:2: field "tracks[0].mean": expected a non-empty array`},
 		{"cov ragged", h + `{"step":0,"tracks":[{"track":"a","mean":[1,2],"cov":[[1,0],[0]]}]}`, `f.jsonl:2: field "tracks[0].cov[1]": expected 2 numbers, got 1`},
@@ -305,6 +307,10 @@ func TestMarshalRejects(t *testing.T) {
 		{Header: Header{Format: 1, Kind: Tape, Scenario: "s"}},
 		{Header: header(Metrics), Frames: []mot.Frame{{}}},
 		{Header: header(Reference), Frames: []mot.Frame{{Tracks: []mot.Estimate{{Track: "a", Mean: []float64{1}, Cov: mot.Mat{Rows: 2, Cols: 2}}}}}},
+		{Header: header(Output)}, // no tracker name
+		{Header: func() Header { h := header(Reference); h.Tracker = "quay"; return h }()},
+		{Header: header(Reference), Frames: []mot.Frame{{Tracks: []mot.Estimate{{Track: "\xff", Mean: []float64{1}}}}}},
+		{Header: header(Metrics), Metrics: []Metric{{Name: "gospa\xfe", Step: -1}}},
 	}
 	for i, f := range bad {
 		if _, err := Marshal(f); err == nil {

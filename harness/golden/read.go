@@ -273,6 +273,9 @@ func parseHeader(line []byte) (Header, string) {
 	case j.Go == nil || j.GOOS == nil || j.GOARCH == nil:
 		return Header{}, `missing platform field "go", "goos" or "goarch"`
 	}
+	if msg := trackerFits(Kind(*j.Kind), j.Tracker); msg != "" {
+		return Header{}, `field "tracker": ` + msg
+	}
 	return Header{
 		Format: *j.Golden, Kind: Kind(*j.Kind), Scenario: *j.Scenario, ScenarioHash: *j.ScenarioHash,
 		Tracker: j.Tracker, Run: *j.Run, Seed: *j.Seed, Protocol: j.Protocol, Trackgate: j.Trackgate,
