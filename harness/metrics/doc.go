@@ -9,7 +9,8 @@
 //     picks the components a distance is taken on (Params.Components), so the
 //     same state vectors serve position-only and full-state distances.
 //   - Invalid parameters (p < 1, c ≤ 0, a confidence outside (0, 1)) are
-//     programmer errors and panic with a "metrics: " prefix. Bad data
+//     programmer errors and panic with a "metrics: " prefix; settings read
+//     from a file are checked first with their Validate method. Bad data
 //     (non-finite coordinates, ragged points, a covariance that is not
 //     positive definite, a track mapped to an object that is not alive)
 //     comes back as an error that names the step, track or object.

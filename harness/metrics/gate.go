@@ -95,16 +95,7 @@ type Paired struct {
 // differ, there are fewer than two pairs, or a value is not finite; it
 // panics on invalid parameters.
 func (g Paired) Compare(gate string, candidate, baseline []float64) (Verdict, error) {
-	conf := g.Confidence
-	if conf == 0 {
-		conf = 0.95
-	}
-	if !(conf > 0 && conf < 1) {
-		panic(fmt.Sprintf("metrics: confidence %g outside (0, 1)", conf))
-	}
-	if !(g.MinEffect >= 0) || math.IsInf(g.MinEffect, 0) {
-		panic(fmt.Sprintf("metrics: minimum effect %g must be finite and non-negative", g.MinEffect))
-	}
+	conf := mustGate(g.Confidence, g.MinEffect)
 	d, err := differences(candidate, baseline, g.HigherIsBetter)
 	if err != nil {
 		return Verdict{}, err
@@ -143,6 +134,33 @@ func (g Paired) Compare(gate string, candidate, baseline []float64) (Verdict, er
 			len(d), conf, v.Lo, v.Hi)
 	}
 	return v, nil
+}
+
+// Validate reports a confidence outside (0, 1) (zero stands for 0.95) or a
+// minimum effect that is negative or not finite. Callers that read gate
+// settings from a file check them with Validate; Compare panics on them.
+func (g Paired) Validate() error { return validateGate(g.Confidence, g.MinEffect) }
+
+func validateGate(conf, minEffect float64) error {
+	if conf != 0 && !(conf > 0 && conf < 1) {
+		return fmt.Errorf("confidence is %g, want a number in (0, 1)", conf)
+	}
+	if !(minEffect >= 0) || math.IsInf(minEffect, 0) {
+		return fmt.Errorf("minimum effect is %g, want a finite non-negative number", minEffect)
+	}
+	return nil
+}
+
+// mustGate returns the confidence (0.95 for zero), panicking on invalid
+// settings.
+func mustGate(conf, minEffect float64) float64 {
+	if err := validateGate(conf, minEffect); err != nil {
+		panic("metrics: " + err.Error())
+	}
+	if conf == 0 {
+		return 0.95
+	}
+	return conf
 }
 
 // differences returns dᵢ = s·(candidateᵢ − baselineᵢ), with s = −1 when

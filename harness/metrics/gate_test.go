@@ -69,6 +69,9 @@ func TestPairedStudentSleep(t *testing.T) {
 
 func TestPairedDecisions(t *testing.T) {
 	base := []float64{3.1, 2.7, 4.0, 3.3, 2.9, 3.8}
+	if (Paired{}).Validate() != nil || (Paired{Confidence: 0.99, MinEffect: 0.2}).Validate() != nil {
+		t.Error("valid gate settings rejected")
+	}
 	v, err := Paired{}.Compare("same", base, base)
 	if err != nil {
 		t.Fatal(err)
@@ -101,6 +104,17 @@ func TestPairedDecisions(t *testing.T) {
 		}
 	}
 	for _, g := range []Paired{{Confidence: 1}, {Confidence: -0.1}, {MinEffect: -1}, {MinEffect: math.NaN()}} {
+		if g.Validate() == nil || (Ranked(g)).Validate() == nil {
+			t.Errorf("Paired%+v.Validate() = nil, want an error", g)
+		}
+		func() {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("Ranked%+v did not panic", g)
+				}
+			}()
+			Ranked(g).Compare("bad", base, base)
+		}()
 		func() {
 			defer func() {
 				if recover() == nil {

@@ -185,16 +185,7 @@ type Ranked struct {
 // reaches confidence c (N ≤ 5 at 95%), the interval is the whole line and
 // the gate passes.
 func (g Ranked) Compare(gate string, candidate, baseline []float64) (Verdict, error) {
-	conf := g.Confidence
-	if conf == 0 {
-		conf = 0.95
-	}
-	if !(conf > 0 && conf < 1) {
-		panic(fmt.Sprintf("metrics: confidence %g outside (0, 1)", conf))
-	}
-	if !(g.MinEffect >= 0) || math.IsInf(g.MinEffect, 0) {
-		panic(fmt.Sprintf("metrics: minimum effect %g must be finite and non-negative", g.MinEffect))
-	}
+	conf := mustGate(g.Confidence, g.MinEffect)
 	d, err := differences(candidate, baseline, g.HigherIsBetter)
 	if err != nil {
 		return Verdict{}, err
@@ -232,6 +223,9 @@ func (g Ranked) Compare(gate string, candidate, baseline []float64) (Verdict, er
 	}
 	return v, nil
 }
+
+// Validate reports invalid settings, as Paired.Validate does.
+func (g Ranked) Validate() error { return validateGate(g.Confidence, g.MinEffect) }
 
 // rankCritical returns the smallest w with P(W⁺ ≥ w) ≤ a for n untied,
 // non-zero differences, or n(n+1)/2 + 1 when no w qualifies.

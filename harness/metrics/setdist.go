@@ -23,27 +23,42 @@ type Params struct {
 	Components []int
 }
 
-// order returns p, panicking on invalid parameters.
-func (p Params) order(allowInf bool) float64 {
+// Validate reports parameters a set distance would reject: a cut-off that
+// is not finite and positive, an order below 1 (or infinite, unless
+// infinite is true, as OSPA allows), a negative component index, or a
+// cut-off whose p-th power overflows. Callers that read parameters from a
+// file check them with Validate; the distances panic on them.
+func (p Params) Validate(infinite bool) error {
 	if !(p.Cutoff > 0) || math.IsInf(p.Cutoff, 0) {
-		panic(fmt.Sprintf("metrics: cut-off %g must be finite and positive", p.Cutoff))
+		return fmt.Errorf("cut-off is %g, want a finite positive number", p.Cutoff)
 	}
 	o := p.Order
 	if o == 0 {
 		o = 2
 	}
-	if !(o >= 1) || (math.IsInf(o, 1) && !allowInf) {
-		panic(fmt.Sprintf("metrics: order %g must be at least 1 and finite", p.Order))
+	if !(o >= 1) || (math.IsInf(o, 1) && !infinite) {
+		return fmt.Errorf("order is %g, want a finite number of at least 1", p.Order)
 	}
 	for _, c := range p.Components {
 		if c < 0 {
-			panic(fmt.Sprintf("metrics: negative component index %d", c))
+			return fmt.Errorf("component index is %d, want a non-negative index", c)
 		}
 	}
 	if !math.IsInf(o, 1) && math.IsInf(powp(p.Cutoff, o), 1) {
-		panic(fmt.Sprintf("metrics: cut-off %g to the power %g overflows", p.Cutoff, o))
+		return fmt.Errorf("cut-off %g to the power %g overflows", p.Cutoff, o)
 	}
-	return o
+	return nil
+}
+
+// order returns p, panicking on invalid parameters.
+func (p Params) order(infinite bool) float64 {
+	if err := p.Validate(infinite); err != nil {
+		panic("metrics: " + err.Error())
+	}
+	if p.Order == 0 {
+		return 2
+	}
+	return p.Order
 }
 
 // powp returns x^p with the exact shortcuts for p = 1 and p = 2.

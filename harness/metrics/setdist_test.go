@@ -488,6 +488,9 @@ func TestSetDistanceErrors(t *testing.T) {
 		t.Errorf("NaN outside the chosen components: %v", err)
 	}
 	for _, bad := range []Params{{}, {Cutoff: -1}, {Cutoff: math.Inf(1)}, {Cutoff: 1, Order: 0.5}, {Cutoff: 1, Order: math.NaN()}, {Cutoff: 1, Components: []int{-1}}, {Cutoff: 1e200, Order: 3}} {
+		if err := bad.Validate(true); err == nil {
+			t.Errorf("Params%+v.Validate() = nil, want an error", bad)
+		}
 		func() {
 			defer func() {
 				if recover() == nil {
@@ -496,6 +499,10 @@ func TestSetDistanceErrors(t *testing.T) {
 			}()
 			w.GOSPA(g1x, g1y, bad)
 		}()
+	}
+	inf := Params{Cutoff: 1, Order: math.Inf(1)}
+	if inf.Validate(false) == nil || inf.Validate(true) != nil || (Params{Cutoff: 1}).Validate(false) != nil {
+		t.Error("Validate does not tell GOSPA's and OSPA's orders apart")
 	}
 	func() {
 		defer func() {
