@@ -625,3 +625,29 @@ func BenchmarkParseScale(b *testing.B) {
 		}
 	}
 }
+
+// TestLineEndingsAndBOM checks a file saved with a UTF-8 byte order mark
+// and CRLF line ends loads to the same Spec as the plain file, apart from
+// the content hash.
+func TestLineEndingsAndBOM(t *testing.T) {
+	data, err := os.ReadFile("../../scenarios/warmup-rail-carts.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain, err := Parse("a.yaml", data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	crlf := append([]byte("\ufeff"), strings.ReplaceAll(string(data), "\n", "\r\n")...)
+	other, err := Parse("a.yaml", crlf)
+	if err != nil {
+		t.Fatalf("Parse(BOM + CRLF):\n%v", err)
+	}
+	if plain.Hash == other.Hash {
+		t.Error("different bytes gave the same hash")
+	}
+	other.Hash = plain.Hash
+	if diff := cmp.Diff(plain, other); diff != "" {
+		t.Errorf("BOM + CRLF changed the Spec (-plain +crlf):\n%s", diff)
+	}
+}
