@@ -17,6 +17,20 @@ type Select struct {
 	Velocity []int
 }
 
+// Validate reports an empty position selection or a negative component
+// index; ScoreRun panics on them.
+func (s Select) Validate() error {
+	if len(s.Position) == 0 {
+		return fmt.Errorf("no position components selected")
+	}
+	for _, c := range slices.Concat(s.Position, s.Velocity) {
+		if c < 0 {
+			return fmt.Errorf("component index is %d, want a non-negative index", c)
+		}
+	}
+	return nil
+}
+
 // ObjectScore is the accuracy and identity record of one object.
 type ObjectScore struct {
 	Object string
@@ -69,17 +83,14 @@ type Score struct {
 // too short for the selected components, or a covariance that is not
 // positive definite.
 func ScoreRun(truth []mot.Truth, frames []mot.Frame, mapping []map[string]string, sel Select) (Score, error) {
-	if len(sel.Position) == 0 {
-		panic("metrics: Select.Position is empty")
+	if err := sel.Validate(); err != nil {
+		panic("metrics: " + err.Error())
 	}
 	if len(truth) != len(frames) || len(truth) != len(mapping) {
 		return Score{}, fmt.Errorf("truth has %d steps, frames %d, mapping %d; want equal counts", len(truth), len(frames), len(mapping))
 	}
 	need := 0
 	for _, c := range slices.Concat(sel.Position, sel.Velocity) {
-		if c < 0 {
-			panic(fmt.Sprintf("metrics: negative component index %d", c))
-		}
 		need = max(need, c+1)
 	}
 

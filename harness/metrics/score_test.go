@@ -171,3 +171,22 @@ func TestScoreRunErrors(t *testing.T) {
 		})
 	}
 }
+
+func TestSelectValidate(t *testing.T) {
+	if err := cv2.Validate(); err != nil {
+		t.Errorf("valid selection: %v", err)
+	}
+	for _, bad := range []Select{{}, {Position: []int{0, -1}}, {Position: []int{0}, Velocity: []int{-2}}} {
+		if bad.Validate() == nil {
+			t.Errorf("Select%+v.Validate() = nil, want an error", bad)
+		}
+		func() {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("ScoreRun with Select%+v did not panic", bad)
+				}
+			}()
+			ScoreRun(nil, nil, nil, bad)
+		}()
+	}
+}
