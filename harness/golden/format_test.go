@@ -21,12 +21,14 @@ import (
 var seed = flag.Uint64("seed", 1, "seed of the random tests (0: random, logged)")
 
 // testRand returns the seeded source of a test; -seed 0 picks a seed from
-// the clock and logs it.
+// the clock. Any seed but the default is logged.
 func testRand(t testing.TB) *rand.Rand {
 	s := *seed
 	if s == 0 {
 		s = uint64(time.Now().UnixNano())
-		t.Logf("seed %d", s)
+	}
+	if s != 1 {
+		t.Logf("seed %d (rerun with -seed %d)", s, s)
 	}
 	return rand.New(rand.NewPCG(s, 0x901d))
 }
