@@ -302,11 +302,11 @@ func (w *walker) motion(node *yaml.Node) declared {
 		return d
 	}
 	d.motion.Kind = kind
-	good := true
+	// The state dimension is known as soon as axes is valid, even when a
+	// noise value is wrong, so that sizes elsewhere are still checked.
+	axesOK := false
 	forbid := func(key, onlyFor string) {
 		if kn := f.key[key]; kn != nil {
-			// Reported, but the state dimension is still known, so the
-			// sizes elsewhere in the file are checked too.
 			w.errAt(kn, "motion."+key, "not used by %s; it belongs to %s only", kind, onlyFor)
 		}
 	}
@@ -324,10 +324,7 @@ func (w *walker) motion(node *yaml.Node) declared {
 		case RandomWalk:
 			hi = MaxRandomWalkDim
 		}
-		axes, ok = w.intIn(an, "motion.axes", axesWant, lo, hi)
-		good = good && ok
-	} else {
-		good = false
+		axes, axesOK = w.intIn(an, "motion.axes", axesWant, lo, hi)
 	}
 	d.motion.Axes = axes
 	if kind == RandomWalk {
@@ -337,21 +334,16 @@ func (w *walker) motion(node *yaml.Node) declared {
 		switch {
 		case vn == nil && cn == nil:
 			w.errAt(f.node, "motion.variance", "missing; expected either variance (a list of per-dimension variances) or covariance (a full matrix)")
-			good = false
 		case vn != nil && cn != nil:
 			w.errAt(f.key["covariance"], "motion.covariance", "given together with variance; expected only one of the two")
-			good = false
 		case vn != nil:
 			v, ok := w.floatList(vn, "motion.variance", "a list of per-dimension variances ≥ 0")
-			good = good && ok
 			if ok && axes > 0 && len(v) != axes {
 				w.errAt(vn, "motion.variance", "has %d entries; expected %d (motion.axes)", len(v), axes)
-				good = false
 			}
 			for i, x := range v {
 				if x < 0 {
 					w.errAt(vn.Content[i], index("motion.variance", i), "%g is negative; expected a variance ≥ 0", x)
-					good = false
 				}
 			}
 			d.variance = v
@@ -360,11 +352,9 @@ func (w *walker) motion(node *yaml.Node) declared {
 			if axes == 0 {
 				dim = -1
 			}
-			q, ok := w.covariance(cn, "motion.covariance", dim)
-			good = good && ok
-			d.motion.Noise = q
+			d.motion.Noise, _ = w.covariance(cn, "motion.covariance", dim)
 		}
-		if good {
+		if axesOK {
 			d.n = axes
 		}
 		return d
@@ -378,23 +368,15 @@ func (w *walker) motion(node *yaml.Node) declared {
 		q, ok := w.floatVal(qn, "motion.accel-noise", "q, the white-noise acceleration variance ≥ 0 in m²/s⁴")
 		if ok && q < 0 {
 			w.errAt(qn, "motion.accel-noise", "%g is negative; expected a variance ≥ 0", q)
-			ok = false
 		}
-		good = good && ok
 		d.motion.AccelNoise = q
-	} else {
-		good = false
 	}
 	if kind == ConstantTurn {
 		if tn := w.require(f, "turn-rate", "ω, the turn rate in rad/s (positive turns counter-clockwise)"); tn != nil {
-			v, ok := w.floatVal(tn, "motion.turn-rate", "ω, the turn rate in rad/s")
-			good = good && ok
-			d.motion.TurnRate = v
-		} else {
-			good = false
+			d.motion.TurnRate, _ = w.floatVal(tn, "motion.turn-rate", "ω, the turn rate in rad/s")
 		}
 	}
-	if good {
+	if axesOK {
 		d.n = 2 * axes
 	}
 	return d
