@@ -178,7 +178,10 @@ func (r *Result) Absent(path string, kind DiffKind) {
 // ids exactly when both sides report an association (an Association diff;
 // whether a changed association is a near-tie is for the caller to judge).
 // Within a step, value diffs and Missing come in reference order, then
-// Extra in tracker order. Frames are matched by Step; paths read "step 17 / track ferry / mean[2]".
+// Extra in tracker order. When names maps two tracker tracks present at a
+// step to one reference track, the first is compared and the second is
+// Extra. Frames are matched by Step; paths read
+// "step 17 / track ferry / mean[2]".
 func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 	var res Result
 	gotByStep := map[int]mot.Frame{}
@@ -196,7 +199,9 @@ func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 		byRef := map[string]mot.Estimate{}
 		for _, e := range gf.Tracks {
 			if ref, ok := names[e.Track]; ok {
-				byRef[ref] = e
+				if _, taken := byRef[ref]; !taken {
+					byRef[ref] = e
+				}
 			}
 		}
 		wantNames := map[string]bool{}
@@ -224,6 +229,10 @@ func Frames(p Profile, want, got []mot.Frame, names map[string]string) Result {
 				res.Absent(fmt.Sprintf("step %d / tracker track %s", wf.Step, e.Track), Extra)
 			case !wantNames[ref]:
 				res.Absent(fmt.Sprintf("step %d / track %s", wf.Step, ref), Extra)
+			case byRef[ref].Track != e.Track:
+				// names is not one-to-one: a second track for the same
+				// reference track is not compared but reported.
+				res.Absent(fmt.Sprintf("step %d / tracker track %s", wf.Step, e.Track), Extra)
 			}
 		}
 	}

@@ -52,6 +52,15 @@ func TestFrames(t *testing.T) {
 	}
 }
 
+func TestFramesNotOneToOne(t *testing.T) {
+	want := []mot.Frame{{Step: 4, Tracks: []mot.Estimate{{Track: "barge", Mean: []float64{1}}}}}
+	got := []mot.Frame{{Step: 4, Tracks: []mot.Estimate{{Track: "a", Mean: []float64{1}}, {Track: "b", Mean: []float64{7}}}}}
+	res := Frames(BitExact(), want, got, map[string]string{"a": "barge", "b": "barge"})
+	if len(res.Diffs) != 1 || res.Diffs[0].Kind != Extra || res.Diffs[0].Path != "step 4 / tracker track b" {
+		t.Errorf("Frames diffs = %v, want one Extra for tracker track b", res.Diffs)
+	}
+}
+
 func TestShapeAndMetrics(t *testing.T) {
 	var res Result
 	res.Floats("mean", Rule{}, []float64{1, 2}, []float64{1})
