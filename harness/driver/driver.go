@@ -453,6 +453,7 @@ func runConversation(ctx context.Context, cfg *Config, s *session, job *Job) (Re
 		if f != nil {
 			return fail(f)
 		}
+		s.ready = x.res.Tracker
 	}
 	for i := range job.Run.Scans {
 		arm()

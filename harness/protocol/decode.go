@@ -112,7 +112,7 @@ func (d *Decoder) Raw() []byte { return d.raw }
 // ReadLine reads the next line, without its line end. It returns io.EOF at
 // the end of input (a final line without a newline is still returned
 // first), an *Error of kind TooLong for a line over the cap (Raw then holds
-// its first bytes), and any error of the underlying reader as is.
+// its first 256 bytes), and any error of the underlying reader as is.
 func (d *Decoder) ReadLine() ([]byte, error) {
 	d.long = d.long[:0]
 	d.raw = nil
@@ -121,7 +121,8 @@ func (d *Decoder) ReadLine() ([]byte, error) {
 		if err == bufio.ErrBufferFull {
 			if len(d.long)+len(frag) > d.max {
 				d.line++
-				d.raw = append(d.long, frag[:min(len(frag), 256)]...)
+				d.long = append(d.long, frag[:min(len(frag), 256)]...)
+				d.raw = d.long[:min(len(d.long), 256)]
 				return nil, &Error{Source: d.source, Line: d.line, Kind: TooLong,
 					Msg: "line longer than " + strconv.Itoa(d.max) + " bytes"}
 			}
@@ -145,7 +146,7 @@ func (d *Decoder) ReadLine() ([]byte, error) {
 			}
 		}
 		if n > d.max {
-			d.raw = line[:256]
+			d.raw = line[:min(len(line), 256)]
 			return nil, &Error{Source: d.source, Line: d.line, Kind: TooLong,
 				Msg: "line longer than " + strconv.Itoa(d.max) + " bytes"}
 		}

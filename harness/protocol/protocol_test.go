@@ -336,3 +336,21 @@ func FuzzParseReady(f *testing.F) {
 		}
 	})
 }
+
+// TestTooLongSmallCap covers caps below the excerpt size and lines longer
+// than the reader's buffer.
+func TestTooLongSmallCap(t *testing.T) {
+	for _, tt := range []struct {
+		max, n int
+	}{{10, 20}, {100, 200 << 10}, {1 << 20, 3 << 20}} {
+		d := NewDecoder(strings.NewReader(strings.Repeat("y", tt.n)+"\n{}\n"), "s", tt.max)
+		_, err := d.ReadLine()
+		var e *Error
+		if !errors.As(err, &e) || e.Kind != TooLong || e.Line != 1 {
+			t.Errorf("cap %d, line of %d: error %v, want TooLong at line 1", tt.max, tt.n, err)
+		}
+		if len(d.Raw()) > 256 || len(d.Raw()) == 0 {
+			t.Errorf("cap %d: excerpt of %d bytes, want 1 to 256", tt.max, len(d.Raw()))
+		}
+	}
+}
