@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 
 	"trackgate/harness/mot"
 )
@@ -82,6 +83,9 @@ type sourceOut struct {
 // number is an error naming the step and field, and nothing more is written
 // after it.
 func Write(w io.Writer, rec Record) error {
+	if len(rec.Run.Truth) != len(rec.Run.Scans) {
+		return fmt.Errorf("sim: write: %d scans but %d truth records", len(rec.Run.Scans), len(rec.Run.Truth))
+	}
 	bw := bufio.NewWriterSize(w, 64<<10)
 	line, err := json.Marshal(headerOut{
 		Kind: Kind, Version: Version, Scenario: rec.Scenario, Hash: rec.Hash,
@@ -90,53 +94,113 @@ func Write(w io.Writer, rec Record) error {
 	if err != nil {
 		return fmt.Errorf("sim: write header: %w", err)
 	}
+	line = append(line, '\n')
 	bw.Write(line)
-	bw.WriteByte('\n')
-	if len(rec.Run.Truth) != len(rec.Run.Scans) {
-		return fmt.Errorf("sim: write: %d scans but %d truth records", len(rec.Run.Scans), len(rec.Run.Truth))
+	// Step lines are appended by hand into one reused buffer; the result is
+	// what json.Marshal(stepOut) gives (TestWriteMatchesEncodingJSON).
+	quoted := map[string][]byte{}
+	str := func(b []byte, s string) []byte {
+		q, ok := quoted[s]
+		if !ok {
+			q, _ = json.Marshal(s) // a string always marshals
+			quoted[s] = q
+		}
+		return append(b, q...)
 	}
 	for k, sc := range rec.Run.Scans {
 		tr := rec.Run.Truth[k]
 		if sc.Step != tr.Step {
 			return fmt.Errorf("sim: write: scan %d has step %d but its truth step %d", k, sc.Step, tr.Step)
 		}
-		so := stepOut{
-			Step: sc.Step, Time: sc.Time,
-			Detections: make([]detOut, len(sc.Detections)),
-			Objects:    make([]objectOut, len(tr.Objects)),
-			Sources:    make([]sourceOut, len(tr.Origins)),
+		if math.IsNaN(sc.Time) || math.IsInf(sc.Time, 0) {
+			return fmt.Errorf("sim: write: step %d: time: expected a finite number, got %v", sc.Step, sc.Time)
 		}
+		b := line[:0]
+		b = append(b, `{"step":`...)
+		b = strconv.AppendInt(b, int64(sc.Step), 10)
+		b = append(b, `,"time":`...)
+		b = appendFloat(b, sc.Time)
+		b = append(b, `,"detections":[`...)
 		for i, d := range sc.Detections {
 			if err := finite(d.Z); err != nil {
 				return fmt.Errorf("sim: write: step %d: detection %d: z: %w", sc.Step, d.ID, err)
 			}
-			so.Detections[i] = detOut{ID: d.ID, Z: nonNil(d.Z)}
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = append(b, `{"id":`...)
+			b = strconv.AppendInt(b, int64(d.ID), 10)
+			b = append(b, `,"z":`...)
+			b = appendFloats(b, d.Z)
+			b = append(b, '}')
 		}
+		b = append(b, `],"objects":[`...)
 		for i, o := range tr.Objects {
 			if err := finite(o.X); err != nil {
 				return fmt.Errorf("sim: write: step %d: object %q: x: %w", sc.Step, o.Object, err)
 			}
-			so.Objects[i] = objectOut{Object: o.Object, X: nonNil(o.X)}
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = append(b, `{"object":`...)
+			b = str(b, o.Object)
+			b = append(b, `,"x":`...)
+			b = appendFloats(b, o.X)
+			b = append(b, '}')
 		}
+		b = append(b, `],"sources":[`...)
 		for i, o := range tr.Origins {
-			so.Sources[i] = sourceOut{Detection: o.Detection, From: o.Object}
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = append(b, `{"detection":`...)
+			b = strconv.AppendInt(b, int64(o.Detection), 10)
+			b = append(b, `,"from":`...)
+			b = str(b, o.Object)
+			b = append(b, '}')
 		}
-		if math.IsNaN(sc.Time) || math.IsInf(sc.Time, 0) {
-			return fmt.Errorf("sim: write: step %d: time: expected a finite number, got %v", sc.Step, sc.Time)
-		}
-		line, err := json.Marshal(so)
-		if err != nil {
-			return fmt.Errorf("sim: write: step %d: %w", sc.Step, err)
-		}
-		bw.Write(line)
-		if err := bw.WriteByte('\n'); err != nil {
+		b = append(b, "]}\n"...)
+		if _, err := bw.Write(b); err != nil {
 			return fmt.Errorf("sim: write: %w", err)
 		}
+		line = b
 	}
 	if err := bw.Flush(); err != nil {
 		return fmt.Errorf("sim: write: %w", err)
 	}
 	return nil
+}
+
+// appendFloat appends v in encoding/json's number format: the shortest
+// decimal that reads back to v, in 'f' form for 1e-6 ≤ |v| < 1e21 (and 0),
+// otherwise in 'e' form with a two-digit negative exponent shortened
+// (1e-07 → 1e-7). v must be finite.
+func appendFloat(b []byte, v float64) []byte {
+	abs := math.Abs(v)
+	format := byte('f')
+	if abs != 0 && (abs < 1e-6 || abs >= 1e21) {
+		format = 'e'
+	}
+	b = strconv.AppendFloat(b, v, format, -1, 64)
+	if format == 'e' {
+		n := len(b)
+		if n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
+			b[n-2] = b[n-1]
+			b = b[:n-1]
+		}
+	}
+	return b
+}
+
+func appendFloats(b []byte, v []float64) []byte {
+	b = append(b, '[')
+	for i, x := range v {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = appendFloat(b, x)
+	}
+	return append(b, ']')
 }
 
 func finite(v []float64) error {
@@ -146,13 +210,6 @@ func finite(v []float64) error {
 		}
 	}
 	return nil
-}
-
-func nonNil(v []float64) []float64 {
-	if v == nil {
-		return []float64{}
-	}
-	return v
 }
 
 // The read shapes: pointers tell a missing key from a zero value.

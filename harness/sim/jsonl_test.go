@@ -2,7 +2,9 @@ package sim
 
 import (
 	"bytes"
+	"encoding/json"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -156,4 +158,74 @@ func FuzzRead(f *testing.F) {
 			t.Fatalf("second round trip differs:\n%s\n%s", a.Bytes(), b.Bytes())
 		}
 	})
+}
+
+// marshalStep is the reference rendering of one step line with
+// encoding/json (Go 1.26 standard library), which Write's hand-written
+// encoder must match byte for byte.
+func marshalStep(t *testing.T, sc mot.Scan, tr mot.Truth) []byte {
+	t.Helper()
+	so := stepOut{Step: sc.Step, Time: sc.Time, Detections: []detOut{}, Objects: []objectOut{}, Sources: []sourceOut{}}
+	for _, d := range sc.Detections {
+		so.Detections = append(so.Detections, detOut{ID: d.ID, Z: append([]float64{}, d.Z...)})
+	}
+	for _, o := range tr.Objects {
+		so.Objects = append(so.Objects, objectOut{Object: o.Object, X: append([]float64{}, o.X...)})
+	}
+	for _, o := range tr.Origins {
+		so.Sources = append(so.Sources, sourceOut{Detection: o.Detection, From: o.Object})
+	}
+	b, err := json.Marshal(so)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return append(b, '\n')
+}
+
+func TestWriteMatchesEncodingJSON(t *testing.T) {
+	r := rand.New(rand.NewPCG(99, 100))
+	// Floats over the whole exponent range, both signs, the format switch
+	// points 1e-6 and 1e21 and their neighbours, zeros and subnormals.
+	special := []float64{0, math.Copysign(0, -1), 1e-6, math.Nextafter(1e-6, 0), 1e21, math.Nextafter(1e21, 0),
+		5e-324, math.MaxFloat64, -math.MaxFloat64, 1e-7, 1.5e-10, 123456789012345678, 0.1, 1.0 / 3}
+	var scans []mot.Scan
+	var truth []mot.Truth
+	for k := range 200 {
+		sc := mot.Scan{Step: k, Time: float64(k) * 0.37}
+		tr := mot.Truth{Step: k}
+		for i := range 5 {
+			z := make([]float64, 3)
+			for j := range z {
+				if r.IntN(4) == 0 {
+					z[j] = special[r.IntN(len(special))]
+				} else {
+					z[j] = math.Ldexp(r.Float64()-0.5, r.IntN(2000)-1000)
+				}
+			}
+			id := k*5 + i
+			sc.Detections = append(sc.Detections, mot.Detection{ID: id, Z: z})
+			tr.Origins = append(tr.Origins, mot.Origin{Detection: id, Object: []string{"", "a<b>&", "ë\"\\\u2028"}[r.IntN(3)]})
+		}
+		if k%3 != 0 {
+			tr.Objects = []mot.TruthState{{Object: "skiff", X: []float64{float64(k) * 1e19, -float64(k) * 1e-9}}}
+		}
+		scans, truth = append(scans, sc), append(truth, tr)
+	}
+	spec := quayScene()
+	real := Run(spec, 0)
+	scans, truth = append(scans, real.Scans...), append(truth, real.Truth...)
+	for k := range real.Scans {
+		scans[200+k].Step, truth[200+k].Step = 200+k, 200+k
+	}
+	var b bytes.Buffer
+	if err := Write(&b, Record{Scenario: "s", Run: mot.Run{Scans: scans, Truth: truth}}); err != nil {
+		t.Fatal(err)
+	}
+	lines := bytes.SplitAfter(b.Bytes(), []byte("\n"))
+	for k := range scans {
+		want := marshalStep(t, scans[k], truth[k])
+		if !bytes.Equal(lines[k+1], want) {
+			t.Fatalf("step %d:\n got %s\nwant %s", k, lines[k+1], want)
+		}
+	}
 }
