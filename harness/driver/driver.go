@@ -160,6 +160,10 @@ func RunMany(ctx context.Context, cfg Config, jobs []Job, workers int) []Result 
 	return results
 }
 
+// onReply, when set (by benchmarks), is called after each reply has been
+// read and checked in a conversation.
+var onReply func()
+
 // session is a tracker process in conversation.
 type session struct {
 	p      *proc
@@ -471,6 +475,9 @@ func runConversation(ctx context.Context, cfg *Config, s *session, job *Job) (Re
 		}
 		if f != nil {
 			return fail(f)
+		}
+		if onReply != nil {
+			onReply()
 		}
 	}
 	arm()
