@@ -108,7 +108,10 @@ func runCost(want, got []mot.Frame, pairs map[string]string, c float64) float64 
 			b, ok2 := G[k][tg]
 			if ok1 && ok2 {
 				d2 := math.Pow(a[0]-b[0], 2) + math.Pow(a[1]-b[1], 2)
-				total += math.Min(d2, c2)
+				if !(d2 < c2) { // beyond the cut-off, or NaN: the documented cap
+					d2 = c2
+				}
+				total += d2
 				covered += 2
 			}
 		}
