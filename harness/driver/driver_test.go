@@ -423,3 +423,51 @@ func TestRing(t *testing.T) {
 		t.Errorf("after a long write: %q", got)
 	}
 }
+
+// marinaJob is the run of the example exchange in PROTOCOL.md.
+func marinaJob() Job {
+	f, _ := mot.MatFromRows([][]float64{{1, 1, 0, 0}, {0, 1, 0, 0}, {0, 0, 1, 1}, {0, 0, 0, 1}})
+	q, _ := mot.MatFromRows([][]float64{{0.025, 0.05, 0, 0}, {0.05, 0.1, 0, 0}, {0, 0, 0.025, 0.05}, {0, 0, 0.05, 0.1}})
+	h, _ := mot.MatFromRows([][]float64{{1, 0, 0, 0}, {0, 0, 1, 0}})
+	r, _ := mot.MatFromRows([][]float64{{4, 0}, {0, 4}})
+	cov, _ := mot.MatFromRows([][]float64{{25, 0, 0, 0}, {0, 1, 0, 0}, {0, 0, 25, 0}, {0, 0, 0, 1}})
+	return Job{Scenario: "marina-entrance", Hash: "5d1e0c4a9b7f3e2d1c0b9a8f7e6d5c4b3a29181706f5e4d3c2b1a09f8e7d6c5b",
+		Model: mot.Model{StateDim: 4, MeasDim: 2, Interval: 1, F: f, Q: q, H: h, R: r, PD: 0.9,
+			ClutterMean: 2, ClutterDensity: 2e-6, ClutterMin: []float64{-500, -500}, ClutterMax: []float64{500, 500}, GateProb: 0.99},
+		Objects: []mot.Object{{ID: "skiff", Mean: []float64{-120, 3, 40, -1}, Cov: cov, Appear: 0, Disappear: -1}},
+		Run: mot.Run{Index: 0, Seed: 7301, Scans: []mot.Scan{
+			{Step: 0, Time: 0, Detections: []mot.Detection{{ID: 0, Z: []float64{-118.5, 41.2}}, {ID: 1, Z: []float64{233.9, -410.7}}}},
+			{Step: 1, Time: 1, Detections: []mot.Detection{{ID: 2, Z: []float64{-361, 12.4}}}},
+		}}}
+}
+
+// TestDocumentExample runs the example exchange of PROTOCOL.md through the
+// driver: the document's tracker passes every check, and the tape holds
+// exactly the document's lines, the extra field included.
+func TestDocumentExample(t *testing.T) {
+	res := Run(context.Background(), fakeConfig("doc"), marinaJob())
+	if res.Fault != nil {
+		t.Fatal(res.Fault)
+	}
+	harness, tracker := exampleLines("harness> "), exampleLines("tracker> ")
+	if len(harness) != 4 || len(tracker) != 3 {
+		t.Fatalf("PROTOCOL.md example: %d harness and %d tracker lines, want 4 and 3", len(harness), len(tracker))
+	}
+	var want []string
+	for i := range harness {
+		want = append(want, harness[i])
+		if i < len(tracker) {
+			want = append(want, tracker[i])
+		}
+	}
+	var got []string
+	for _, e := range res.Tape {
+		got = append(got, string(e.Raw))
+	}
+	if diff := cmp.Diff(want, got); diff != "" {
+		t.Errorf("tape differs from the document (-document +tape):\n%s", diff)
+	}
+	if len(res.Frames) != 2 || res.Frames[1].Tracks[0].Track != "1" || res.Frames[1].Tracks[0].Detection != mot.NoDetection {
+		t.Errorf("frames = %+v", res.Frames)
+	}
+}

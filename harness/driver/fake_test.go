@@ -53,6 +53,10 @@ func fakeTracker(mode string, args []string) {
 		time.Sleep(time.Hour)
 		return
 	}
+	if mode == "doc" {
+		fakeFromDocument()
+		return
+	}
 	if strings.HasPrefix(mode, "batch") {
 		fakeBatch(mode, args)
 		return
@@ -221,5 +225,42 @@ func fakeBatch(mode string, args []string) {
 			}
 			enc.Tracks(echoFrame(model, req.Scan))
 		}
+	}
+}
+
+// exampleLines returns the lines of the example exchange in PROTOCOL.md
+// with the given prefix ("harness> " or "tracker> ").
+func exampleLines(prefix string) []string {
+	b, err := os.ReadFile("../PROTOCOL.md")
+	if err != nil {
+		return nil
+	}
+	var out []string
+	for _, l := range strings.Split(string(b), "\n") {
+		if strings.HasPrefix(l, prefix) {
+			out = append(out, strings.TrimPrefix(l, prefix))
+		}
+	}
+	return out
+}
+
+// fakeFromDocument replays the tracker side of the example exchange in
+// PROTOCOL.md, one line per message that wants a reply.
+func fakeFromDocument() {
+	replies := exampleLines("tracker> ")
+	dec := protocol.NewDecoder(os.Stdin, "stdin", 0)
+	for {
+		req, err := dec.ReadRequest()
+		if err != nil {
+			return
+		}
+		if req.Type == protocol.TypeStop {
+			continue
+		}
+		if len(replies) == 0 {
+			os.Exit(8)
+		}
+		fmt.Println(replies[0])
+		replies = replies[1:]
 	}
 }
