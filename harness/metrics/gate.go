@@ -18,7 +18,9 @@ type Verdict struct {
 	// mean worsening d̄ for a paired gate.
 	Estimate float64
 	// Lo and Hi bound the confidence interval of Estimate for a paired
-	// gate; an absolute gate sets both to Estimate.
+	// gate; an absolute gate sets both to Estimate. The signed-rank gate
+	// sets them to −Inf and +Inf when there are too few runs for any
+	// interval at the requested confidence.
 	Lo, Hi float64
 	// Limit is the threshold the decision compared against.
 	Limit float64

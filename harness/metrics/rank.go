@@ -33,6 +33,7 @@ const ExactRankLimit = 200
 // convention) and tied absolute values get their average rank. It returns
 // W⁺, the sum of the ranks of the positive differences, the number n of
 // non-zero differences and the one-sided p-value P(W⁺ ≥ w) (1 when n = 0).
+// A difference that is not finite is an error.
 //
 // Under the null each rank carries a positive sign with probability ½
 // independently, so the exact distribution of W⁺ given the ranks is the
@@ -46,7 +47,10 @@ const ExactRankLimit = 200
 // Biometrics Bulletin 1(6):80–83, 1945; M. Hollander, D. A. Wolfe,
 // "Nonparametric Statistical Methods", 2nd ed., Wiley, 1999, §3.1 (tie
 // correction of the variance).
-func SignedRankTest(d []float64, method RankMethod) (w float64, n int, p float64) {
+func SignedRankTest(d []float64, method RankMethod) (w float64, n int, p float64, err error) {
+	if err := checkFinite(d); err != nil {
+		return 0, 0, 0, err
+	}
 	abs := make([]float64, 0, len(d))
 	for _, v := range d {
 		if v != 0 {
@@ -55,7 +59,7 @@ func SignedRankTest(d []float64, method RankMethod) (w float64, n int, p float64
 	}
 	n = len(abs)
 	if n == 0 {
-		return 0, 0, 1
+		return 0, 0, 1, nil
 	}
 	// Doubled midranks are integers: rank2[i] = first + last (1-based) of
 	// the tie group of abs[i].
@@ -94,10 +98,10 @@ func SignedRankTest(d []float64, method RankMethod) (w float64, n int, p float64
 		mean := nf * (nf + 1) / 4
 		sd := math.Sqrt(nf*(nf+1)*(2*nf+1)/24 - tieSum/48)
 		if sd == 0 {
-			return w, n, 1
+			return w, n, 1, nil
 		}
 		z := (w - mean - 0.5) / sd
-		return w, n, distuv.UnitNormal.Survival(z)
+		return w, n, distuv.UnitNormal.Survival(z), nil
 	}
 	// prob[s] = P(2W⁺ = s), built one rank at a time.
 	total := 0
@@ -119,18 +123,22 @@ func SignedRankTest(d []float64, method RankMethod) (w float64, n int, p float64
 	for s := w2; s <= total; s++ {
 		p += prob[s]
 	}
-	return w, n, math.Min(p, 1)
+	return w, n, math.Min(p, 1), nil
 }
 
 // SignTest is the exact sign test of the null hypothesis that positive and
 // negative differences are equally likely, against the alternative that
 // positive ones are more likely. Zeros are dropped. It returns the number
 // of positive differences, the number n of non-zero ones and the one-sided
-// p-value P(S ≥ pos) for S ~ Binomial(n, ½) (1 when n = 0).
+// p-value P(S ≥ pos) for S ~ Binomial(n, ½) (1 when n = 0). A difference
+// that is not finite is an error.
 //
 // Reference: W. J. Conover, "Practical Nonparametric Statistics", 3rd ed.,
 // Wiley, 1999, §3.4 (from memory).
-func SignTest(d []float64) (pos, n int, p float64) {
+func SignTest(d []float64) (pos, n int, p float64, err error) {
+	if err := checkFinite(d); err != nil {
+		return 0, 0, 0, err
+	}
 	for _, v := range d {
 		if v > 0 {
 			pos++
@@ -140,7 +148,7 @@ func SignTest(d []float64) (pos, n int, p float64) {
 		}
 	}
 	if n == 0 {
-		return 0, 0, 1
+		return 0, 0, 1, nil
 	}
 	// Σ_{k ≥ pos} C(n, k)/2ⁿ with log-binomials.
 	for k := pos; k <= n; k++ {
@@ -149,7 +157,16 @@ func SignTest(d []float64) (pos, n int, p float64) {
 		b, _ := math.Lgamma(float64(n - k + 1))
 		p += math.Exp(lc - a - b - float64(n)*math.Ln2)
 	}
-	return pos, n, math.Min(p, 1)
+	return pos, n, math.Min(p, 1), nil
+}
+
+func checkFinite(d []float64) error {
+	for i, v := range d {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("difference %d is %g, want a finite number", i, v)
+		}
+	}
+	return nil
 }
 
 // Ranked is the distribution-free counterpart of Paired: the same paired
@@ -212,7 +229,9 @@ func (g Ranked) Compare(gate string, candidate, baseline []float64) (Verdict, er
 	for i, x := range d {
 		shifted[i] = x - shift
 	}
-	_, _, v.PValue = SignedRankTest(shifted, RankAuto)
+	if _, _, v.PValue, err = SignedRankTest(shifted, RankAuto); err != nil {
+		return Verdict{}, err
+	}
 	if v.Lo > shift {
 		v.Reason = fmt.Sprintf("candidate is worse by %.4g (median of Walsh averages) over %d runs; the %g interval [%.4g, %.4g] lies above the minimum effect %g",
 			est, n, conf, v.Lo, v.Hi, g.MinEffect)

@@ -62,7 +62,7 @@ func TestSignedRankExactAgainstEnumeration(t *testing.T) {
 			// Coarse values produce zeros and ties.
 			d[k] = float64(r.IntN(9) - 3)
 		}
-		w, _, p := SignedRankTest(d, RankExact)
+		w, _, p, _ := SignedRankTest(d, RankExact)
 		bw, bp := bruteSignedRankP(d)
 		if w != bw || !closeRel(p, bp, 1e-12) {
 			t.Fatalf("SignedRankTest(%v) = W %g, p %.15g; enumeration W %g, p %.15g", d, w, p, bw, bp)
@@ -85,10 +85,10 @@ func TestSignedRankCriticalValues(t *testing.T) {
 	}
 	// n = 6, all positive: P(W⁺ ≥ 21) = 1/64 (only the all-positive
 	// pattern reaches 21; hand derivation).
-	if _, _, p := SignedRankTest([]float64{1, 2, 3, 4, 5, 6}, RankExact); !closeRel(p, 1.0/64, 1e-15) {
+	if _, _, p, _ := SignedRankTest([]float64{1, 2, 3, 4, 5, 6}, RankExact); !closeRel(p, 1.0/64, 1e-15) {
 		t.Errorf("all positive n = 6: p = %g, want 1/64", p)
 	}
-	if _, n, p := SignedRankTest([]float64{0, 0}, RankAuto); n != 0 || p != 1 {
+	if _, n, p, _ := SignedRankTest([]float64{0, 0}, RankAuto); n != 0 || p != 1 {
 		t.Errorf("all zero: n = %d, p = %g, want 0 and 1", n, p)
 	}
 }
@@ -102,7 +102,7 @@ func TestSignedRankCriticalValues(t *testing.T) {
 // and tie corrections (from memory).
 func TestSignedRankNormalSleep(t *testing.T) {
 	d := []float64{1.2, 2.4, 1.3, 1.3, 0.0, 1.0, 1.8, 0.8, 4.6, 1.4}
-	w, n, p := SignedRankTest(d, RankNormal)
+	w, n, p, _ := SignedRankTest(d, RankNormal)
 	if w != 45 || n != 9 {
 		t.Fatalf("W = %g, n = %d, want 45, 9", w, n)
 	}
@@ -113,7 +113,7 @@ func TestSignedRankNormalSleep(t *testing.T) {
 		t.Errorf("two-sided p = %.7f, want 0.009091", 2*p)
 	}
 	// Exact: W⁺ = 45 is the maximum, reached only by the all-positive pattern.
-	if _, _, p := SignedRankTest(d, RankExact); !closeRel(p, 1.0/512, 1e-15) {
+	if _, _, p, _ := SignedRankTest(d, RankExact); !closeRel(p, 1.0/512, 1e-15) {
 		t.Errorf("exact p = %g, want 1/512", p)
 	}
 }
@@ -125,7 +125,7 @@ func TestSignTest(t *testing.T) {
 		for k := range d {
 			d[k] = float64(r.IntN(5) - 2)
 		}
-		pos, n, p := SignTest(d)
+		pos, n, p, _ := SignTest(d)
 		want := 1.0
 		if n > 0 {
 			// Independent: gonum's binomial CDF, P(S ≥ pos) = 1 − P(S ≤ pos − 1).
@@ -136,7 +136,7 @@ func TestSignTest(t *testing.T) {
 		}
 	}
 	// Sleep data: 9 positive of 9 non-zero: 1/512 (hand).
-	if pos, n, p := SignTest([]float64{1.2, 2.4, 1.3, 1.3, 0.0, 1.0, 1.8, 0.8, 4.6, 1.4}); pos != 9 || n != 9 || !closeRel(p, 1.0/512, 1e-12) {
+	if pos, n, p, _ := SignTest([]float64{1.2, 2.4, 1.3, 1.3, 0.0, 1.0, 1.8, 0.8, 4.6, 1.4}); pos != 9 || n != 9 || !closeRel(p, 1.0/512, 1e-12) {
 		t.Errorf("sleep sign test = %d, %d, %g; want 9, 9, 1/512", pos, n, p)
 	}
 }
@@ -165,7 +165,7 @@ func TestRankedInterval(t *testing.T) {
 			for j := range d {
 				s[j] = d[j] - theta
 			}
-			w, _, _ := SignedRankTest(s, RankExact)
+			w, _, _, _ := SignedRankTest(s, RankExact)
 			return w
 		}
 		if w := shiftW(v.Lo - 1e-9); w < float64(k) {
@@ -242,5 +242,16 @@ func TestRankCriticalNormal(t *testing.T) {
 	}
 	if got := rankCritical(ExactRankLimit+1, 0.025); got <= exact || got > exact+ExactRankLimit+5 {
 		t.Errorf("critical value at n = %d = %d, want just above %d", ExactRankLimit+1, got, exact)
+	}
+}
+
+func TestRankTestsRejectNonFinite(t *testing.T) {
+	for _, d := range [][]float64{{1, math.NaN()}, {math.Inf(1), 2}, {-1, math.Inf(-1)}} {
+		if _, _, _, err := SignedRankTest(d, RankAuto); err == nil {
+			t.Errorf("SignedRankTest(%v): no error", d)
+		}
+		if _, _, _, err := SignTest(d); err == nil {
+			t.Errorf("SignTest(%v): no error", d)
+		}
 	}
 }
