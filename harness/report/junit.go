@@ -135,7 +135,7 @@ func junitScenario(sc *result.Scenario, common []xmlProperty) xmlSuite {
 			case result.Faulted:
 				xc.Error = faultProblem(r.Fault, c)
 				if r.Fault != nil {
-					xc.SystemErr = r.Fault.Stderr
+					xc.SystemErr = stderrTail(r.Fault.Stderr)
 				}
 				faultShown = true
 			default:
@@ -150,7 +150,7 @@ func junitScenario(sc *result.Scenario, common []xmlProperty) xmlSuite {
 			case r.Fault != nil || r.Status == result.Faulted:
 				xc.Error = faultProblem(r.Fault, nil)
 				if r.Fault != nil {
-					xc.SystemErr = r.Fault.Stderr
+					xc.SystemErr = stderrTail(r.Fault.Stderr)
 				}
 			case r.Status == result.Error:
 				xc.Error = &xmlProblem{Message: "trackgate could not run this run", Type: "error"}
@@ -213,6 +213,25 @@ func junitScenario(sc *result.Scenario, common []xmlProperty) xmlSuite {
 	}
 	xs.Time = seconds(xs.seconds)
 	return xs
+}
+
+// stderrTail keeps the last 200 lines and at most 64 KiB of a tracker's
+// stderr, so a chatty tracker cannot push a report past the CI size limits
+// (GitLab: 30 MB per JUnit file).
+func stderrTail(s string) string {
+	lines, cut := tail(s, 200)
+	out := strings.Join(lines, "\n")
+	if len(out) > 64<<10 {
+		out = strings.ToValidUTF8(out[len(out)-64<<10:], "")
+		cut = -1
+	}
+	switch {
+	case cut > 0:
+		return fmt.Sprintf("[%d earlier lines not shown]\n%s", cut, out)
+	case cut < 0:
+		return "[earlier output not shown]\n" + out
+	}
+	return out
 }
 
 func orText(s, fallback string) string {

@@ -333,3 +333,38 @@ func BenchmarkJUnit(b *testing.B) {
 		}
 	}
 }
+
+// FuzzJUnitText puts arbitrary text into every free-text field: the JUnit
+// output must always parse, with the counts intact.
+func FuzzJUnitText(f *testing.F) {
+	f.Add("crossing_quay", "bad \x00 byte", "]]> <&>", "line\r\nnext")
+	f.Add("\xff\xfe", "\u2028", "--><!--", "\x1b[31m")
+	f.Fuzz(func(t *testing.T, name, msg, stderr, path string) {
+		s := hostile()
+		sc := &s.Scenarios[0]
+		sc.Name, sc.File = name, path
+		sc.Runs[0].Checks[0].Message = msg
+		sc.Runs[0].Checks[0].Diffs = []result.Diff{{Path: path, Tolerance: msg}}
+		sc.Runs[0].Fault.Stderr = stderr
+		sc.Runs[0].Fault.Excerpt = msg
+		var b bytes.Buffer
+		if err := report.JUnit(&b, s); err != nil {
+			t.Fatal(err)
+		}
+		doc := parseJUnit(t, b.Bytes())
+		if len(doc.Suites) != 1 || doc.Tests != 2 || doc.Failures != 1 || doc.Errors != 1 {
+			t.Fatalf("counts %+v after arbitrary text", doc)
+		}
+	})
+}
+
+func TestStderrCapped(t *testing.T) {
+	s := hostile()
+	s.Scenarios[0].Runs[0].Fault.Stderr = strings.Repeat("gate residual 0.25\n", 5000)
+	out := string(render(t, func(b *bytes.Buffer) error { return report.JUnit(b, s) }))
+	doc := parseJUnit(t, []byte(out))
+	se := doc.Suites[0].Cases[1].SystemErr
+	if n := strings.Count(se, "gate residual"); n != 200 || !strings.HasPrefix(se, "[4800 earlier lines not shown]") {
+		t.Errorf("system-err keeps %d lines, starts %q; want the last 200 with a note", n, se[:40])
+	}
+}

@@ -257,3 +257,24 @@ func BenchmarkOf(b *testing.B) {
 		shard.Of("crossing_harbour_ferries", 17, 8)
 	}
 }
+
+func FuzzParse(f *testing.F) {
+	for _, s := range []string{"0/4", "1/4", " 3 / 8 ", "4/4", "x/y", "/", "-1/2", "9999999999999999999/1"} {
+		f.Add(s, 0)
+		f.Add(s, 1)
+	}
+	f.Fuzz(func(t *testing.T, text string, base int) {
+		spec, err := shard.Parse(text, base)
+		if err != nil {
+			return
+		}
+		if !spec.Valid() {
+			t.Fatalf("Parse(%q, %d) = %v, which is not a valid shard", text, base, spec)
+		}
+		// The spec written back with the same base parses to itself.
+		again, err := shard.Parse(fmt.Sprintf("%d/%d", spec.Index+base, spec.Total), base)
+		if err != nil || again != spec {
+			t.Fatalf("round trip of %v: %v, %v", spec, again, err)
+		}
+	})
+}
