@@ -7,13 +7,17 @@
 //
 // State x (length n), covariance P (n×n); model F, Q (n×n), H (m×n), R (m×m):
 //
-//	predict:   x⁻ = F x,            P⁻ = F P Fᵀ + Q
+//	predict:   x⁻ = F x,            P⁻ = (F P) Fᵀ + Q
 //	project:   ẑ = H x⁻,            S = H P⁻ Hᵀ + R,   S = L Lᵀ (Cholesky)
 //	innovate:  ν = z − ẑ,           d² = νᵀ S⁻¹ ν = |L⁻¹ν|²   (NIS)
 //	gain:      K = P⁻ Hᵀ S⁻¹
 //	update:    x = x⁻ + K ν
-//	Joseph:    P = (I − K H) P⁻ (I − K H)ᵀ + K R Kᵀ,   then P ← (P + Pᵀ)/2
+//	Joseph:    P = (I − K H) P⁻ (I − K H)ᵀ + K R Kᵀ
 //	log-lik.:  ln N(z; ẑ, S) = −½ (d² + m ln 2π + ln|S|),  ln|S| = 2 Σ ln Lᵢᵢ
+//
+// Every covariance (P⁻, S, P) is symmetrised by construction: only its
+// upper triangle is computed and it is mirrored into the lower one, so it
+// is exactly symmetric. Input covariances are taken to be symmetric.
 //
 // The Joseph form keeps P symmetric and positive semi-definite for any gain;
 // with the optimal gain it equals the standard form (I − K H) P⁻ in exact

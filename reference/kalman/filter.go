@@ -33,7 +33,7 @@ type Filter struct {
 	xs          []float64 // n
 	fp          []float64 // n×n: F P, then (I−KH) P
 	pp          []float64 // n×n: result before copy-out
-	pht         []float64 // n×m: P Hᵀ
+	hp          []float64 // m×n: H P
 	k           []float64 // n×m: gain
 	a           []float64 // n×n: I − K H
 	kr          []float64 // n×m: K R
@@ -76,7 +76,7 @@ func New(model mot.Model) (*Filter, error) {
 		r:  append([]float64(nil), model.R.Data...),
 		xs: make([]float64, n),
 		fp: make([]float64, n*n), pp: make([]float64, n*n), a: make([]float64, n*n),
-		pht: make([]float64, n*m), k: make([]float64, n*m), kr: make([]float64, n*m),
+		hp: make([]float64, n*m), k: make([]float64, n*m), kr: make([]float64, n*m),
 		nu: make([]float64, m), y: make([]float64, m), col: make([]float64, m),
 	}
 	return f, nil
@@ -98,13 +98,9 @@ func (f *Filter) PredictTo(xDst, pDst, x, p []float64) {
 	f.checkState("PredictTo destination", xDst, pDst)
 	n := f.n
 	mulVec(f.xs, f.f, x, n, n)
-	mul(f.fp, f.f, p, n, n, n)      // F P
-	mulBT(f.pp, f.fp, f.f, n, n, n) // F P Fᵀ
-	for i := range f.pp {
-		f.pp[i] += f.q[i]
-	}
+	mul(f.fp, f.f, p, n, n, n) // F P
 	copy(xDst, f.xs)
-	symmetriseTo(pDst, f.pp, n)
+	symOuterTo(pDst, f.fp, f.f, f.q, n, n) // F P Fᵀ + Q
 }
 
 // Projection is a predicted state carried into measurement space: the
@@ -135,12 +131,8 @@ func (f *Filter) ProjectTo(dst *Projection, x, p []float64) error {
 	dst.S = grow(dst.S, m*m)
 	dst.L = grow(dst.L, m*m)
 	mulVec(dst.Zhat, f.h, x, m, n)
-	mulBT(f.pht, p, f.h, n, n, m) // P Hᵀ (n×m)
-	mul(dst.S, f.h, f.pht, m, n, m)
-	for i := range dst.S {
-		dst.S[i] += f.r[i]
-	}
-	symmetriseTo(dst.S, dst.S, m)
+	mul(f.hp, f.h, p, m, n, n)              // H P (m×n)
+	symOuterTo(dst.S, f.hp, f.h, f.r, m, n) // H P Hᵀ + R
 	ld, err := cholesky(dst.L, dst.S, m)
 	if err != nil {
 		return err
@@ -202,10 +194,13 @@ func (f *Filter) UpdateTo(xDst, pDst, x, p []float64, pr *Projection, z []float6
 	forward(f.y, pr.L, m)
 	d2 := sumSquares(f.y)
 
-	// K = P Hᵀ S⁻¹, row by row: S kᵢ = (P Hᵀ)ᵢ since S is symmetric.
-	mulBT(f.pht, p, f.h, n, n, m)
+	// K = P Hᵀ S⁻¹, row by row: S kᵢ = (P Hᵀ)ᵢ = (H P)ᵀᵢ since S and P
+	// are symmetric.
+	mul(f.hp, f.h, p, m, n, n)
 	for i := 0; i < n; i++ {
-		copy(f.col, f.pht[i*m:(i+1)*m])
+		for a := 0; a < m; a++ {
+			f.col[a] = f.hp[a*n+i]
+		}
 		forward(f.col, pr.L, m)
 		backwardT(f.col, pr.L, m)
 		copy(f.k[i*m:(i+1)*m], f.col)
@@ -227,20 +222,28 @@ func (f *Filter) UpdateTo(xDst, pDst, x, p []float64, pr *Projection, z []float6
 		f.a[i*n+i] += 1
 	}
 	// P = A P Aᵀ + K R Kᵀ.
+	// The upper triangle is computed and mirrored, so P is exactly
+	// symmetric.
 	mul(f.fp, f.a, p, n, n, n)
-	mulBT(f.pp, f.fp, f.a, n, n, n)
 	mul(f.kr, f.k, f.r, n, m, m)
 	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			s := f.pp[i*n+j]
-			for l := 0; l < m; l++ {
-				s += float64(f.kr[i*m+l] * f.k[j*m+l])
+		api, kri := f.fp[i*n:(i+1)*n], f.kr[i*m:(i+1)*m]
+		for j := i; j < n; j++ {
+			aj, kj := f.a[j*n : (j+1)*n][:len(api)], f.k[j*m : (j+1)*m][:len(kri)]
+			var s float64
+			for l, v := range api {
+				s += float64(v * aj[l])
 			}
-			f.pp[i*n+j] = s
+			var t float64
+			for l, v := range kri {
+				t += float64(v * kj[l])
+			}
+			f.pp[i*n+j] = s + t
+			f.pp[j*n+i] = s + t
 		}
 	}
 	copy(xDst, f.xs)
-	symmetriseTo(pDst, f.pp, n)
+	copy(pDst, f.pp)
 	return Result{NIS: d2, LogLik: pr.LogLikelihood(d2)}
 }
 
@@ -279,37 +282,33 @@ func mulVec(dst, a, x []float64, r, c int) {
 // mul: dst (r×c) = A (r×k) B (k×c). dst must not alias A or B.
 func mul(dst, a, b []float64, r, k, c int) {
 	for i := 0; i < r; i++ {
-		for j := 0; j < c; j++ {
+		ai, di := a[i*k:(i+1)*k], dst[i*c:(i+1)*c]
+		for j := range di {
 			var s float64
-			for l := 0; l < k; l++ {
-				s += float64(a[i*k+l] * b[l*c+j])
+			for l, v := range ai {
+				s += float64(v * b[l*c+j])
 			}
-			dst[i*c+j] = s
+			di[j] = s
 		}
 	}
 }
 
-// mulBT: dst (r×c) = A (r×k) Bᵀ with B (c×k). dst must not alias A or B.
-func mulBT(dst, a, b []float64, r, k, c int) {
+// symOuterTo writes A Bᵀ + C into dst (r×r) for a product known to be
+// symmetric, A and B r×k, C r×r: it computes the upper triangle (with the
+// upper triangle of C) and mirrors it, so dst is exactly symmetric. dst must
+// not alias A or B.
+func symOuterTo(dst, a, b, c []float64, r, k int) {
 	for i := 0; i < r; i++ {
-		for j := 0; j < c; j++ {
+		ai := a[i*k : (i+1)*k]
+		for j := i; j < r; j++ {
+			bj := b[j*k : (j+1)*k][:len(ai)]
 			var s float64
-			for l := 0; l < k; l++ {
-				s += float64(a[i*k+l] * b[j*k+l])
+			for l, v := range ai {
+				s += float64(v * bj[l])
 			}
-			dst[i*c+j] = s
-		}
-	}
-}
-
-// symmetriseTo writes (A + Aᵀ)/2 into dst (n×n); dst may alias a.
-func symmetriseTo(dst, a []float64, n int) {
-	for i := 0; i < n; i++ {
-		dst[i*n+i] = a[i*n+i]
-		for j := i + 1; j < n; j++ {
-			v := (a[i*n+j] + a[j*n+i]) * 0.5
-			dst[i*n+j] = v
-			dst[j*n+i] = v
+			s += c[i*r+j]
+			dst[i*r+j] = s
+			dst[j*r+i] = s
 		}
 	}
 }
