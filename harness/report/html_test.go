@@ -109,9 +109,8 @@ func consoleErrors(stderr string) []string {
 }
 
 // TestHTMLInBrowser loads the page in headless Chromium: no console
-// errors, the DOM holds the plotted paths, and a screenshot shows the
-// tracker (orange) and reference (blue) tracks, which a blank plot would
-// not.
+// errors, and a screenshot shows the tracker (orange) and reference (blue)
+// tracks and the divergence marks (red), which a blank plot would not.
 func TestHTMLInBrowser(t *testing.T) {
 	if testing.Short() {
 		t.Skip("browser test skipped in -short mode")
@@ -125,7 +124,7 @@ func TestHTMLInBrowser(t *testing.T) {
 	// The console check must be able to fail: a page that throws is caught.
 	broken := filepath.Join(dir, "broken.html")
 	os.WriteFile(broken, []byte(`<!DOCTYPE html><html><body><script>throw new Error("quay wall");</script></body></html>`), 0o644)
-	if _, stderr := runBrowser(t, bin, broken, "--dump-dom"); len(consoleErrors(stderr)) == 0 {
+	if _, stderr := runBrowser(t, bin, broken, "--window-size=400,300", "--screenshot="+filepath.Join(dir, "broken.png")); len(consoleErrors(stderr)) == 0 {
 		t.Fatalf("a page that throws shows no console error; the check is blind:\n%s", stderr)
 	}
 
@@ -140,22 +139,23 @@ func TestHTMLInBrowser(t *testing.T) {
 	if err := os.WriteFile(page, buf.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	dom, stderr := runBrowser(t, bin, page, "--dump-dom")
-	if errs := consoleErrors(stderr); len(errs) > 0 {
-		t.Errorf("console errors:\n%s", strings.Join(errs, "\n"))
-	}
-	trk := regexp.MustCompile(`<polyline class="trk" points="([^"]*)"`).FindAllStringSubmatch(dom, -1)
+	// The page's SVG holds the tracks as polylines with their points.
+	trk := regexp.MustCompile(`<polyline class="trk" points="([^"]*)"`).FindAllStringSubmatch(buf.String(), -1)
 	if len(trk) < 3 {
-		t.Fatalf("rendered DOM has %d tracker polylines, want ≥ 3 (three tracks)", len(trk))
+		t.Fatalf("page has %d tracker polylines, want ≥ 3 (three tracks)", len(trk))
 	}
 	for _, m := range trk[:3] {
 		if n := len(strings.Fields(m[1])); n < 10 {
 			t.Errorf("tracker polyline with %d points, want ≥ 10", n)
 		}
 	}
-
+	// One browser run: console errors from its log, pixels from its
+	// screenshot.
 	shot := filepath.Join(dir, "shot.png")
-	runBrowser(t, bin, page, "--window-size=1100,1900", "--screenshot="+shot)
+	_, stderr := runBrowser(t, bin, page, "--window-size=1100,1900", "--screenshot="+shot)
+	if errs := consoleErrors(stderr); len(errs) > 0 {
+		t.Errorf("console errors:\n%s", strings.Join(errs, "\n"))
+	}
 	f, err := os.Open(shot)
 	if err != nil {
 		t.Fatal(err)
