@@ -50,6 +50,7 @@ func warehouseScene(clutterMean float64) *scenario.Spec {
 // simulateAll runs every run of spec.
 func simulateAll(t *testing.T, spec *scenario.Spec) []mot.Run {
 	t.Helper()
+	spec.Seed = seedFor(t, spec.Seed)
 	s, err := Prepare(spec)
 	if err != nil {
 		t.Fatalf("Prepare: %v", err)

@@ -246,3 +246,37 @@ func TestPrepareRejects(t *testing.T) {
 }
 
 func nanF() float64 { var z float64; return z / z }
+
+// TestConcurrentRuns checks that one Sim serves many goroutines (run it
+// with -race) and that the runs do not depend on one another.
+func TestConcurrentRuns(t *testing.T) {
+	spec := quayScene()
+	s, err := Prepare(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := make([][]byte, 8)
+	for r := range want {
+		want[r] = render(t, spec, s.Run(r))
+	}
+	got := make([][]byte, 8)
+	done := make(chan int)
+	for r := range got {
+		go func() {
+			var b bytes.Buffer
+			if err := Write(&b, Record{Scenario: spec.Name, Hash: spec.Hash, Run: s.Run(r)}); err != nil {
+				t.Error(err)
+			}
+			got[r] = b.Bytes()
+			done <- r
+		}()
+	}
+	for range got {
+		<-done
+	}
+	for r := range got {
+		if !bytes.Equal(got[r], want[r]) {
+			t.Errorf("run %d differs when simulated concurrently", r)
+		}
+	}
+}

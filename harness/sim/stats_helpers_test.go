@@ -1,8 +1,11 @@
 package sim
 
 import (
+	"flag"
 	"math"
+	"sync"
 	"testing"
+	"time"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -12,6 +15,31 @@ import (
 // The seeds are fixed, so a passing test passes every time; the level only
 // guards against choosing a seed that happens to pass a wrong simulator.
 const alpha = 0.001
+
+var statSeed = flag.Uint64("statseed", 1, "seed choice of the statistical tests: 1 keeps the fixed seeds, 0 picks a seed from the clock (logged), any other value is mixed into every seed")
+
+var (
+	clockSeedOnce sync.Once
+	clockSeed     uint64
+)
+
+// seedFor returns the seed a statistical test uses in place of base,
+// following -statseed, and logs it when it is not the fixed one. Trying
+// many values shows how often the tests fail on a correct simulator.
+func seedFor(t testing.TB, base uint64) uint64 {
+	t.Helper()
+	s := *statSeed
+	if s == 1 {
+		return base
+	}
+	if s == 0 {
+		clockSeedOnce.Do(func() { clockSeed = uint64(time.Now().UnixNano()) | 2 })
+		s = clockSeed
+	}
+	seed := base ^ mix(s)
+	t.Logf("-statseed %d: seed %d in place of %d", s, seed, base)
+	return seed
+}
 
 // twoSidedZ fails t when |z| exceeds the standard normal quantile
 // Φ⁻¹(1 − level/2) (gonum distuv.UnitNormal).
