@@ -429,7 +429,8 @@ func runConversation(ctx context.Context, cfg *Config, s *session, job *Job) (Re
 	arm()
 	if err := s.enc.Start(x.startMessage()); err != nil {
 		var nf *protocol.NonFiniteError
-		if errors.As(err, &nf) {
+		var se *protocol.ShapeError
+		if errors.As(err, &nf) || errors.As(err, &se) {
 			return fail(&Fault{Class: Harness, Step: -1, Detail: err.Error()})
 		}
 		return fail(ioFault(err, -1))

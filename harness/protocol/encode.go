@@ -281,7 +281,22 @@ func appendVec(b []byte, v []float64, field string) ([]byte, error) {
 	return append(b, ']'), nil
 }
 
+// ShapeError is returned by the encoder for a matrix whose data does not
+// match its declared size.
+type ShapeError struct {
+	Field      string
+	Rows, Cols int
+	Len        int
+}
+
+func (e *ShapeError) Error() string {
+	return fmt.Sprintf("protocol: %s: %d×%d matrix with %d entries", e.Field, e.Rows, e.Cols, e.Len)
+}
+
 func appendMat(b []byte, m mot.Mat, field string) ([]byte, error) {
+	if m.Rows < 0 || m.Cols < 0 || len(m.Data) != m.Rows*m.Cols {
+		return b, &ShapeError{Field: field, Rows: m.Rows, Cols: m.Cols, Len: len(m.Data)}
+	}
 	b = append(b, '[')
 	for i := 0; i < m.Rows; i++ {
 		if i > 0 {

@@ -81,6 +81,16 @@ func TestEncoderRefusesNonFinite(t *testing.T) {
 	}
 }
 
+func TestEncoderRefusesBadMatrix(t *testing.T) {
+	s := harbourStart()
+	s.Model.F.Data = s.Model.F.Data[:15]
+	_, err := AppendStart(nil, s)
+	var se *ShapeError
+	if !errors.As(err, &se) || se.Field != "model.F" {
+		t.Errorf("AppendStart with a short F: error %v, want ShapeError at model.F", err)
+	}
+}
+
 func TestTracksRoundTrip(t *testing.T) {
 	cov, _ := mot.MatFromRows([][]float64{{2, 0.5}, {0.5, 3}})
 	want := mot.Frame{Step: 4, Tracks: []mot.Estimate{
