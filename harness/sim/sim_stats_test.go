@@ -260,7 +260,7 @@ func TestClutter(t *testing.T) {
 						z := run.Scans[k].Detections[i].Z
 						var cell int
 						for j := range 2 {
-							if !(z[j] >= md.ClutterMin[j] && z[j] < md.ClutterMax[j]) {
+							if !(z[j] >= md.ClutterMin[j] && z[j] <= md.ClutterMax[j]) {
 								t.Fatalf("run %d step %d: clutter %v outside the box", run.Index, k, z)
 							}
 							u := (z[j] - md.ClutterMin[j]) / (md.ClutterMax[j] - md.ClutterMin[j])
