@@ -70,9 +70,11 @@
 //     0x9E3779B97F4A7C15); the finaliser constants 0xBF58476D1CE4E5B9,
 //     0x94D049BB133111EB and shifts 30, 27, 31 are those of S. Vigna's
 //     reference splitmix64.c (prng.di.unimi.it), "variant 13" of D. Stafford's
-//     "Better bit mixing" (2011).
+//     "Better bit mixing" (2011; attribution from memory). Checked against
+//     the outputs published on Rosetta Code, "Pseudo-random
+//     numbers/Splitmix64" (TestRunSeedSplitMix64Reference).
 //   - D. E. Knuth, The Art of Computer Programming, Vol. 2, 3rd ed., 1997,
-//     §3.4.1 (Poisson deviates by multiplying uniforms).
+//     §3.4.1 (Poisson deviates by multiplying uniforms; section from memory).
 //   - W. Hörmann, "The transformed rejection method for generating Poisson
 //     random variables", Insurance: Mathematics and Economics 12(1):39–45,
 //     1993 (algorithm PTRS).
