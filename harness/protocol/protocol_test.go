@@ -2,6 +2,7 @@ package protocol
 
 import (
 	"bytes"
+	"encoding/json"
 	"errors"
 	"math"
 	"strings"
@@ -361,6 +362,33 @@ func TestTooLongSmallCap(t *testing.T) {
 		}
 		if len(d.Raw()) > 256 || len(d.Raw()) == 0 {
 			t.Errorf("cap %d: excerpt of %d bytes, want 1 to 256", tt.max, len(d.Raw()))
+		}
+	}
+}
+
+// BenchmarkReadTracksEncodingJSON decodes the same line as
+// BenchmarkReadTracks with encoding/json into an equivalent struct, as a
+// yardstick for the hand-written decoder (without its checks for
+// non-finite tokens and field paths).
+func BenchmarkReadTracksEncodingJSON(b *testing.B) {
+	line, _ := AppendTracks(nil, benchFrame())
+	type track struct {
+		ID        json.RawMessage `json:"id"`
+		Mean      []float64       `json:"mean"`
+		Cov       [][]float64     `json:"cov"`
+		Detection *int            `json:"detection"`
+	}
+	var msg struct {
+		Type   string  `json:"type"`
+		Step   int     `json:"step"`
+		Tracks []track `json:"tracks"`
+	}
+	b.ReportAllocs()
+	b.SetBytes(int64(len(line)))
+	for b.Loop() {
+		msg.Tracks = msg.Tracks[:0]
+		if err := json.Unmarshal(line, &msg); err != nil {
+			b.Fatal(err)
 		}
 	}
 }
