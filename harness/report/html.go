@@ -354,10 +354,12 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 			}
 		}
 	}
+	ringed := false
 	if m.first >= 0 {
 		for _, p := range involved(tr.Tracker, m.objects) {
 			for _, pt := range p.Points {
 				if pt.Step == m.first && finite(pt.X, pt.Y) {
+					ringed = true
 					s.add(`<circle class="diverge" cx="%s" cy="%s" r="7"><title>first divergence, step %d (%s)</title></circle>`, f1(f.px(pt.X)), f1(f.py(pt.Y)), m.first, esc(m.firstKind))
 				}
 			}
@@ -365,7 +367,7 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 	}
 	s.add(`</g>`)
 	items := []legendItem{{"truth", "truth", "line"}, {"det", "detections", "dot"}, {"ref", "reference", "line"}, {"trk", "tracker", "line"}, {"refell", "2σ reference", "band"}, {"trkell", "2σ tracker", "band"}}
-	if m.first >= 0 {
+	if ringed {
 		items = append(items, legendItem{"diverge", "first divergence", "dot"})
 	}
 	s.legend(plotW-padR+14, padT+10, items)
