@@ -288,7 +288,7 @@ func (w *Workspace) augment(c []float64, nc, cur int) bool {
 	sink := -1
 	for sink < 0 {
 		visited = append(visited, i)
-		row := c[i*nc : i*nc+nc]
+		row := c[i*nc:][:nc]
 		base := minVal - u[i]
 		lowest := inf
 		index := -1
