@@ -96,24 +96,9 @@ func newRanker(cost []float64, rows, cols int) *ranker {
 }
 
 func (r *ranker) run(k int) ([]Hypothesis, error) {
-	n := r.n
-	rowToCol := make([]int, n)
-	if _, err := r.ws.Solve(r.base, n, n, rowToCol); err != nil {
+	if err := r.start(); err != nil {
 		return nil, err
 	}
-	root := &node{
-		solved:  true,
-		col4row: append([]int(nil), r.ws.col4row[:n]...),
-		u:       append([]float64(nil), r.ws.u[:n]...),
-		v:       append([]float64(nil), r.ws.v[:n]...),
-		forced:  make([]int32, r.nr),
-	}
-	for i := range root.forced {
-		root.forced[i] = -1
-	}
-	root.cost = r.total(root.col4row)
-	r.push(root)
-
 	var out []Hypothesis
 	for len(out) < k && r.queue.Len() > 0 {
 		best := heap.Pop(&r.queue).(*node)
@@ -129,6 +114,28 @@ func (r *ranker) run(k int) ([]Hypothesis, error) {
 		}
 	}
 	return out, nil
+}
+
+// start solves the whole problem and queues it as the root.
+func (r *ranker) start() error {
+	n := r.n
+	rowToCol := make([]int, n)
+	if _, err := r.ws.Solve(r.base, n, n, rowToCol); err != nil {
+		return err
+	}
+	root := &node{
+		solved:  true,
+		col4row: append([]int(nil), r.ws.col4row[:n]...),
+		u:       append([]float64(nil), r.ws.u[:n]...),
+		v:       append([]float64(nil), r.ws.v[:n]...),
+		forced:  make([]int32, r.nr),
+	}
+	for i := range root.forced {
+		root.forced[i] = -1
+	}
+	root.cost = r.total(root.col4row)
+	r.push(root)
+	return nil
 }
 
 func (r *ranker) push(nd *node) {

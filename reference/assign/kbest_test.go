@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 	"testing"
 )
 
@@ -234,4 +235,104 @@ func FuzzKBest(f *testing.F) {
 		}
 		checkRanking(t, c, rows, cols, got)
 	})
+}
+
+// TestPartitionTrace checks one partition step against the traces of
+// CHECK-VALUES §5.2 (project notes, COMP-own): the children of the first
+// node, in partition order, and the infeasible last child that is dropped.
+func TestPartitionTrace(t *testing.T) {
+	tests := []struct {
+		name string
+		want []float64
+	}{
+		// A1: forbid (0,0) → 16; force (0,0), forbid (1,2) → 18; third infeasible.
+		{"A1", []float64{16, 18}},
+		// A4: forbid (0,2) → 142; force (0,2), forbid (1,1) → 181;
+		// force (0,2),(1,1), forbid (2,0) → 200; fourth infeasible.
+		{"A4", []float64{142, 181, 200}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var p = published[0]
+			for _, q := range published {
+				if q.name == tc.name {
+					p = q
+				}
+			}
+			r := newRanker(p.cost, p.rows, p.cols)
+			if err := r.start(); err != nil {
+				t.Fatal(err)
+			}
+			root := r.queue[0]
+			r.queue = r.queue[:0]
+			r.partition(root)
+			children := append(nodeHeap(nil), r.queue...)
+			sort.Slice(children, func(a, b int) bool { return children[a].seq < children[b].seq })
+			if len(children) != len(tc.want) {
+				t.Fatalf("%d children queued, want %d", len(children), len(tc.want))
+			}
+			for k, nd := range children {
+				bound := nd.cost
+				if !r.solve(nd) {
+					t.Fatalf("child %d infeasible, want cost %v", k, tc.want[k])
+				}
+				if !near(nd.cost, tc.want[k]) || bound > nd.cost {
+					t.Errorf("child %d: cost %v (bound %v), want %v", k, nd.cost, bound, tc.want[k])
+				}
+			}
+		})
+	}
+}
+
+// TestBoundsBelowOptimum: every queued child's lower bound is at most its
+// optimum, and a child dropped as infeasible has no finite completion (the
+// oracle enumerates the child's matrix), on seeded random problems.
+func TestBoundsBelowOptimum(t *testing.T) {
+	rng := testRand(t, 8)
+	for trial := 0; trial < 400; trial++ {
+		rows, cols := 1+rng.IntN(6), 1+rng.IntN(6)
+		c := randomMatrix(rng, rows, cols, trial%2 == 0, 0.3)
+		r := newRanker(c, rows, cols)
+		if r.start() != nil {
+			continue
+		}
+		root := r.queue[0]
+		r.queue = r.queue[:0]
+		r.partition(root)
+		queued := map[int]bool{}
+		for _, nd := range append(nodeHeap(nil), r.queue...) {
+			queued[nd.row] = true
+			bound := nd.cost
+			if !r.solve(nd) {
+				continue // a bound can be finite for an infeasible child
+			}
+			if bound > nd.cost {
+				t.Fatalf("trial %d: child of row %d bound %v above optimum %v", trial, nd.row, bound, nd.cost)
+			}
+		}
+		// A dropped child must be infeasible: check by enumeration on
+		// the padded matrix with the child's constraints.
+		forced := map[int]int{}
+		for i := 0; i < r.nr; i++ {
+			j := root.col4row[i]
+			if !queued[i] {
+				m := append([]float64(nil), r.base...)
+				m[i*r.n+j] = inf
+				for fi, fj := range forced {
+					for k := 0; k < r.n; k++ {
+						if k != fj {
+							m[fi*r.n+k] = inf
+						}
+						if k != fi {
+							m[k*r.n+fj] = inf
+						}
+					}
+				}
+				if len(enumerate(m, r.n, r.n)) != 0 {
+					t.Fatalf("trial %d: child of row %d dropped but feasible", trial, i)
+				}
+			}
+			forced[i] = j
+		}
+	}
 }
