@@ -22,6 +22,8 @@ type cluster struct {
 	hyps []assign.Hypothesis
 	// count bounds the number of association events of the cluster.
 	count float64
+	// events is the exact number of association events when exact.
+	events float64
 	// logZ is ln Σ exp(−(cost − best)) over all its events (exact) or an
 	// upper bound (not exact).
 	logZ  float64
@@ -247,9 +249,10 @@ func (e *engine) rank(cm *CostMatrix, c *cluster) error {
 	switch {
 	case len(hyps) < kr:
 		// Murty stopped early: the list is every feasible event.
-		c.logZ, c.exact = logSumExp(hyps, best), true
+		c.logZ, c.exact, c.events = logSumExp(hyps, best), true, float64(len(hyps))
 	case e.enumLimit > 0 && c.count <= float64(e.enumLimit):
-		c.logZ, c.exact = enumerate(cost, nr, nd, best), true
+		c.logZ, c.events = enumerate(cost, nr, nd, best)
+		c.exact = true
 	default:
 		z := math.Exp(logSumExp(hyps, best))
 		last := hyps[len(hyps)-1].Cost - best
@@ -290,8 +293,9 @@ func logSumExp(hyps []assign.Hypothesis, best float64) float64 {
 }
 
 // enumerate returns ln Σ exp(−(cost − best)) over every feasible event of
-// the nr × (nd + nr) augmented matrix, by depth-first search.
-func enumerate(cost []float64, nr, nd int, best float64) float64 {
+// the nr × (nd + nr) augmented matrix, by depth-first search, and the
+// number of events.
+func enumerate(cost []float64, nr, nd int, best float64) (logZ, events float64) {
 	cols := nd + nr
 	used := make([]bool, nd)
 	var s float64
@@ -299,6 +303,7 @@ func enumerate(cost []float64, nr, nd int, best float64) float64 {
 	walk = func(row int, acc float64) {
 		if row == nr {
 			s += math.Exp(-(acc - best))
+			events++
 			return
 		}
 		for j := 0; j < nd; j++ {
@@ -313,7 +318,7 @@ func enumerate(cost []float64, nr, nd int, best float64) float64 {
 		}
 	}
 	walk(0, 0)
-	return math.Log(s)
+	return math.Log(s), events
 }
 
 // pick chooses rank Rank of cluster Cluster in a combined hypothesis.
@@ -374,9 +379,11 @@ func (e *engine) hypotheses(d *Detail, cl []*cluster, rowToDet, detIDs []int, r 
 
 	exhaustive := true
 	var logZ float64
+	events := 1.0
 	for _, c := range cl {
 		exhaustive = exhaustive && c.exact
 		logZ += c.logZ
+		events *= c.events
 	}
 	var listed float64
 	for _, g := range list {
@@ -411,6 +418,9 @@ func (e *engine) hypotheses(d *Detail, cl []*cluster, rowToDet, detIDs []int, r 
 	d.Exhaustive = exhaustive
 	// logZ is exact when exhaustive and an upper bound otherwise.
 	d.CoveredMass = math.Min(1, math.Exp(math.Log(listed)-logZ))
+	if exhaustive && float64(len(list)) == events {
+		d.CoveredMass = 1 // every event is listed
+	}
 	// The second best differs from the best in exactly one cluster.
 	d.Margin = math.Inf(1)
 	for _, c := range cl {

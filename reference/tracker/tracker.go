@@ -168,6 +168,16 @@ func checkObjects(md mot.Model, objs []mot.Object) error {
 		if len(o.Mean) != n || o.Cov.Rows != n || o.Cov.Cols != n || len(o.Cov.Data) != n*n {
 			return fmt.Errorf("tracker: object %q: prior of length %d with %d×%d covariance, want %d and %d×%d", o.ID, len(o.Mean), o.Cov.Rows, o.Cov.Cols, n, n, n)
 		}
+		for j, v := range o.Mean {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("tracker: object %q: prior mean[%d] is %g, want a finite number", o.ID, j, v)
+			}
+		}
+		for j, v := range o.Cov.Data {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("tracker: object %q: prior covariance entry (%d, %d) is %g, want a finite number", o.ID, j/n, j%n, v)
+			}
+		}
 		if o.Appear < 0 {
 			return fmt.Errorf("tracker: object %q: appear %d, want ≥ 0", o.ID, o.Appear)
 		}

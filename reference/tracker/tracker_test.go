@@ -380,6 +380,12 @@ func TestBadInput(t *testing.T) {
 	if _, _, err := New(Config{Model: md, Objects: []mot.Object{{ID: "a", Mean: []float64{0}}}}).Step(scan); err == nil {
 		t.Error("object prior of the wrong size accepted")
 	}
+	if _, _, err := New(Config{Model: md, Objects: []mot.Object{{ID: "a", Mean: []float64{0, math.Inf(1)}, Cov: mot.Identity(2)}}}).Step(scan); err == nil {
+		t.Error("infinite prior mean accepted")
+	}
+	if _, _, err := New(Config{Model: md, Objects: []mot.Object{{ID: "a", Mean: []float64{0, 0}, Cov: mot.Identity(2)}, {ID: "a", Mean: []float64{0, 0}, Cov: mot.Identity(2)}}}).Step(scan); err == nil {
+		t.Error("repeated object id accepted")
+	}
 }
 
 // TestLifecycle follows objects that appear and disappear and checks Step
