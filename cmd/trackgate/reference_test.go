@@ -1,9 +1,12 @@
 package main
 
 import (
+	"bytes"
 	"context"
+	"io"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 
@@ -70,5 +73,25 @@ func TestReferenceThroughDriver(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+func TestReferenceUsageAndBadInput(t *testing.T) {
+	var out, errs bytes.Buffer
+	if code := run([]string{"reference", "extra"}, &out, &errs); code != exitUsage {
+		t.Errorf("reference extra: exit %d, want %d", code, exitUsage)
+	}
+	if code := run([]string{"reference", "-k", "0"}, &out, &errs); code != exitUsage {
+		t.Errorf("reference -k 0: exit %d, want %d", code, exitUsage)
+	}
+	defer func(r io.Reader) { referenceInput = r }(referenceInput)
+	referenceInput = strings.NewReader(`{"type":"scan","step":0,"time":0,"detections":[]}` + "\n")
+	errs.Reset()
+	if code := run([]string{"reference"}, &out, &errs); code != exitTracker || !strings.Contains(errs.String(), "trackgate reference: stdin:1: scan outside a run") {
+		t.Errorf("reference on a scan before start: exit %d, stderr %q", code, errs.String())
+	}
+	referenceInput = strings.NewReader("")
+	if code := run([]string{"reference"}, &out, &errs); code != exitPass {
+		t.Errorf("reference on empty input: exit %d, want 0", code)
 	}
 }

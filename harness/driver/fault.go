@@ -104,7 +104,7 @@ func (f *Fault) Error() string {
 		b.WriteString(strconv.Itoa(f.Step))
 	}
 	if f.Line > 0 {
-		b.WriteString(", stdout line ")
+		b.WriteString(", output line ")
 		b.WriteString(strconv.Itoa(f.Line))
 	}
 	if f.Detail != "" {
