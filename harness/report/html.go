@@ -230,9 +230,15 @@ func divergenceMarks(r *result.Run) marks {
 	return m
 }
 
+// plotLimit is the largest magnitude plotted; larger values (and NaN, ±Inf)
+// are left off the plots, so that ranges and pixel positions stay finite.
+const plotLimit = 1e150
+
+// finite reports whether every x can be plotted: not NaN and within
+// ±plotLimit.
 func finite(xs ...float64) bool {
 	for _, x := range xs {
-		if math.IsNaN(x) || math.IsInf(x, 0) {
+		if !(math.Abs(x) <= plotLimit) {
 			return false
 		}
 	}
@@ -382,7 +388,7 @@ func timePlot(tr *result.Trace, m marks) template.HTML {
 		for _, p := range ps {
 			for _, pt := range p.Points {
 				b.add(float64(pt.Step), pt.X)
-				if pt.Ellipse != nil && pt.Ellipse[0] >= 0 {
+				if pt.Ellipse != nil && pt.Ellipse[0] >= 0 && finite(pt.X, pt.Ellipse[0]) {
 					r := math.Sqrt(pt.Ellipse[0])
 					b.add(float64(pt.Step), pt.X-r)
 					b.add(float64(pt.Step), pt.X+r)
@@ -494,7 +500,7 @@ func timelinePlot(assoc []string, m marks) template.HTML {
 		}
 		s.add(`<rect class="%s" x="%s" y="%s" width="%s" height="%s"><title>step %d: %s</title></rect>`, class, f1(f.left+float64(k)*w), f1(f.top), f1(math.Max(w-0.6, 0.6)), f1(f.height), k, esc(a))
 	}
-	for v := 0.0; v <= f.x1; v += f.xstep {
+	for _, v := range tickValues(0, f.x1, f.xstep) {
 		s.add(`<text class="tick" x="%s" y="%s" text-anchor="middle">%s</text>`, f1(f.px(v)), f1(f.top+f.height+14), esc(tickLabel(v, f.xstep)))
 	}
 	for _, t := range m.ties {

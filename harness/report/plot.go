@@ -47,6 +47,14 @@ func niceNum(x float64, round bool) float64 {
 // ticks returns Heckbert's "loose" labels for the range [lo, hi] with about
 // n ticks: the graph range [first, last] covers [lo, hi], and step is nice.
 func ticks(lo, hi float64, n int) (first, last, step float64) {
+	if !finite(lo, hi) {
+		lo, hi = 0, 1
+	}
+	if math.IsInf(hi-lo, 0) {
+		// The range overflows: halve both ends (ticks stay sensible).
+		f, l, s := ticks(lo/2, hi/2, n)
+		return 2 * f, 2 * l, 2 * s
+	}
 	if !(hi > lo) {
 		// A degenerate range: open it around the value.
 		d := math.Max(math.Abs(lo)*0.1, 1)
@@ -62,17 +70,45 @@ func ticks(lo, hi float64, n int) (first, last, step float64) {
 	return first, last, step
 }
 
+// maxTicks bounds the ticks of one axis, so absurd data (a range of 1e300
+// in steps that vanish against the values) cannot stall a report.
+const maxTicks = 60
+
+// tickValues returns the multiples of step in [lo, hi], at most maxTicks.
+func tickValues(lo, hi, step float64) []float64 {
+	if !finite(lo, hi, step) || step <= 0 {
+		return nil
+	}
+	var out []float64
+	start := math.Ceil(lo/step) * step
+	for i := 0; i < maxTicks; i++ {
+		v := start + float64(i)*step
+		if v > hi+step*1e-9 {
+			break
+		}
+		out = append(out, v)
+	}
+	return out
+}
+
 // tickLabel formats a tick value with as many decimals as the step needs.
 func tickLabel(v, step float64) string {
-	dec := max(0, int(-math.Floor(math.Log10(step))))
+	dec := min(20, max(0, int(-math.Floor(math.Log10(step)))))
 	if math.Abs(v) < step/1e6 {
 		v = 0
 	}
 	return strconv.FormatFloat(v, 'f', dec, 64)
 }
 
-// f1 formats a pixel coordinate.
-func f1(x float64) string { return strconv.FormatFloat(x, 'f', 1, 64) }
+// f1 formats a pixel coordinate. A non-finite coordinate (which plotted
+// data cannot produce, see finite) is written as 0 rather than as text an
+// SVG reader rejects.
+func f1(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		x = 0
+	}
+	return strconv.FormatFloat(x, 'f', 1, 64)
+}
 
 // frame maps data coordinates to pixels inside a plot area.
 type frame struct {
@@ -119,12 +155,12 @@ func esc(s string) string { return template.HTMLEscapeString(s) }
 // axes draws the grid, tick labels and axis titles.
 func (s *svg) axes(f *frame, xtitle, ytitle string) {
 	s.add(`<rect class="area" x="%s" y="%s" width="%s" height="%s"/>`, f1(f.left), f1(f.top), f1(f.width), f1(f.height))
-	for v := math.Ceil(f.x0/f.xstep) * f.xstep; v <= f.x1+f.xstep*1e-9; v += f.xstep {
+	for _, v := range tickValues(f.x0, f.x1, f.xstep) {
 		x := f.px(v)
 		s.add(`<line class="grid" x1="%s" y1="%s" x2="%s" y2="%s"/>`, f1(x), f1(f.top), f1(x), f1(f.top+f.height))
 		s.add(`<text class="tick" x="%s" y="%s" text-anchor="middle">%s</text>`, f1(x), f1(f.top+f.height+14), esc(tickLabel(v, f.xstep)))
 	}
-	for v := math.Ceil(f.y0/f.ystep) * f.ystep; v <= f.y1+f.ystep*1e-9; v += f.ystep {
+	for _, v := range tickValues(f.y0, f.y1, f.ystep) {
 		y := f.py(v)
 		s.add(`<line class="grid" x1="%s" y1="%s" x2="%s" y2="%s"/>`, f1(f.left), f1(y), f1(f.left+f.width), f1(y))
 		s.add(`<text class="tick" x="%s" y="%s" text-anchor="end">%s</text>`, f1(f.left-5), f1(y+4), esc(tickLabel(v, f.ystep)))

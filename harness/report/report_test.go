@@ -4,11 +4,13 @@ import (
 	"bytes"
 	"encoding/xml"
 	"flag"
+	"math"
 	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/google/go-cmp/cmp"
 
@@ -366,5 +368,71 @@ func TestStderrCapped(t *testing.T) {
 	se := doc.Suites[0].Cases[1].SystemErr
 	if n := strings.Count(se, "gate residual"); n != 200 || !strings.HasPrefix(se, "[4800 earlier lines not shown]") {
 		t.Errorf("system-err keeps %d lines, starts %q; want the last 200 with a note", n, se[:40])
+	}
+}
+
+// odd returns suites with values a renderer must survive: non-finite and
+// extreme numbers, empty and missing parts.
+func odd() map[string]*result.Suite {
+	nan, inf := math.NaN(), math.Inf(1)
+	pt := func(step int, x, y float64) result.Point { return result.Point{Step: step, X: x, Y: y} }
+	base := func(sc result.Scenario) *result.Suite {
+		return &result.Suite{Version: 1, Status: sc.Status, Scenarios: []result.Scenario{sc}}
+	}
+	return map[string]*result.Suite{
+		"empty suite": {Version: 1},
+		"no runs":     base(result.Scenario{Name: "quay_empty", Status: result.Error}),
+		"nan everywhere": base(result.Scenario{Name: "quay_nan", Status: result.Fail, Position: []int{0, 2},
+			Metrics: &result.Metrics{Runs: 1, GOSPA: []float64{nan, inf}, MeanGOSPA: nan, NEES: []float64{nan}, NEESLow: nan, NEESHigh: inf},
+			Gates:   []result.Gate{{Name: "g", Status: result.Error, Estimate: nan, Low: -inf, High: inf}},
+			Runs: []result.Run{{Status: result.Fail,
+				Checks:  []result.Check{{Name: "reference", Status: result.Fail, First: &result.Divergence{Step: -3}, Diffs: []result.Diff{{Want: nan, Got: inf, Excess: nan}, {Excess: 1}}}},
+				Metrics: &result.RunMetrics{GOSPA: []float64{nan}, NEES: []float64{-inf}},
+				Trace: &result.Trace{
+					Truth:        []result.Path{{ID: "a", Points: []result.Point{pt(0, nan, 1), pt(1, inf, 2)}}},
+					Detections:   [][]result.Point{nil, {pt(1, nan, nan)}},
+					Reference:    []result.Path{{ID: "r", Points: []result.Point{{Step: 0, X: 1, Y: 1, Ellipse: &[3]float64{nan, 0, 1}}}}},
+					Tracker:      []result.Path{{ID: "t", Points: []result.Point{{Step: 0, X: 1, Y: 1, Ellipse: &[3]float64{-1, 5, -1}}}}},
+					Associations: []string{"unheard-of"},
+				}}}}),
+		"extreme range": base(result.Scenario{Name: "quay_far", Status: result.Pass, Position: []int{0},
+			Runs: []result.Run{{Status: result.Pass,
+				Metrics: &result.RunMetrics{GOSPA: []float64{1e17, 1e17 + 2, -1e308, 1e308}},
+				Trace: &result.Trace{Truth: []result.Path{{ID: "a", Points: []result.Point{pt(0, 1e17, 0), pt(1, 1e17+1, 0), pt(2, -1.7e308, 0), pt(3, 1.7e308, 0)}}},
+					Tracker: []result.Path{{ID: "t", Points: []result.Point{{Step: 0, X: 5, Ellipse: &[3]float64{1e300, 0, 0}}}}}}}}}),
+		"empty trace": base(result.Scenario{Name: "quay_blank", Status: result.Faulted, Position: []int{0, 1},
+			Runs: []result.Run{{Status: result.Faulted, Fault: &result.Fault{Class: "hang"}, Trace: &result.Trace{}}}}),
+	}
+}
+
+func TestOddSuites(t *testing.T) {
+	for name, s := range odd() {
+		t.Run(name, func(t *testing.T) {
+			var b bytes.Buffer
+			for fname, f := range map[string]func() error{
+				"terminal": func() error { return report.Terminal(&b, s, report.TerminalOptions{Colour: true}) },
+				"junit":    func() error { return report.JUnit(&b, s) },
+				"markdown": func() error { return report.Markdown(&b, s, report.MarkdownOptions{}) },
+				"html":     func() error { return report.HTML(&b, s) },
+			} {
+				b.Reset()
+				done := make(chan error, 1)
+				go func() { done <- f() }()
+				select {
+				case err := <-done:
+					if err != nil {
+						t.Errorf("%s: %v", fname, err)
+					}
+				case <-time.After(20 * time.Second):
+					t.Fatalf("%s: renderer did not finish", fname)
+				}
+				if fname == "junit" {
+					parseJUnit(t, b.Bytes())
+				}
+				if fname == "html" && (strings.Contains(b.String(), "NaN\"") || strings.Contains(b.String(), "Inf\"")) {
+					t.Errorf("html: a non-finite number reached an SVG attribute")
+				}
+			}
+		})
 	}
 }
