@@ -39,15 +39,21 @@ func BenchmarkSolve(b *testing.B) {
 	cases := []struct {
 		rows, cols int
 		gated      bool
+		noInit     bool // Crouse's method without the reduction start
 	}{
-		{10, 10, false}, {100, 100, false}, {500, 500, false}, {1000, 1000, false}, {2000, 2000, false},
-		{100, 200, false}, {1000, 2000, false},
-		{1000, 1000, true},
+		{10, 10, false, false}, {100, 100, false, false}, {500, 500, false, false},
+		{1000, 1000, false, false}, {2000, 2000, false, false},
+		{100, 200, false, false}, {1000, 2000, false, false},
+		{1000, 1000, true, false},
+		{100, 100, false, true}, {1000, 1000, false, true}, {1000, 2000, false, true},
 	}
 	for _, bc := range cases {
 		name := fmt.Sprintf("%dx%d", bc.rows, bc.cols)
 		if bc.gated {
 			name += "-gated90"
+		}
+		if bc.noInit {
+			name += "-noinit"
 		}
 		b.Run(name, func(b *testing.B) {
 			count := 5
@@ -55,7 +61,7 @@ func BenchmarkSolve(b *testing.B) {
 				count = 2
 			}
 			pool := benchPool(bc.rows, bc.cols, count, bc.gated)
-			var w Workspace
+			w := Workspace{NoInit: bc.noInit}
 			out := make([]int, bc.rows)
 			if _, err := w.Solve(pool[0], bc.rows, bc.cols, out); err != nil {
 				b.Fatal(err)

@@ -18,33 +18,33 @@
 // # Method
 //
 // [Workspace.Solve] is the shortest augmenting path method of Jonker and
-// Volgenant in the rectangular form written out by Crouse, without the
-// square-only initialisation phases. Rows are added one at a time; for each
-// new row a Dijkstra search over reduced costs
+// Volgenant in the rectangular form written out by Crouse. Rows are added one
+// at a time; for each free row a Dijkstra search over the reduced costs
 //
 //	c̄_ij = C_ij − u_i − v_j ≥ 0
 //
 // finds the cheapest alternating path to a free column, the duals (u, v) are
 // updated so that every reduced cost stays non-negative and the path's
-// reduced costs become zero, and the path is flipped. Instead of shifting the
-// matrix by its minimum m, the row duals start at u_i = m, which makes the
-// zero column duals feasible without copying the costs (this is the start
-// with Workspace.NoInit; the default start is described below). At the end the duals
+// reduced costs become zero, and the path is flipped. At the end the duals
 // are an optimality certificate (see [Workspace.Duals]):
 //
 //	C_ij ≥ u_i + v_j for every finite entry, with equality on assigned pairs,
-//	v_j ≤ 0, v_j = 0 on unassigned columns (r < c),
+//	v_j ≤ 0, v_j = 0 on unassigned columns (only when r < c),
 //	Σ_i u_i + Σ_j v_j = J(σ*).
 //
-// Before the augmentations, a square problem is started with the column
-// reduction of Jonker and Volgenant (v_j = min_i C_ij; the row holding a
-// column's minimum takes it when free) and a wide one with the analogous row
-// reduction (u_i = min_j C_ij, v = 0, which keeps the rectangular sign
-// condition). Both leave the reduced costs non-negative and the assigned
-// pairs tight, so only the remaining rows need a search; on uniform random
-// costs this cut the 1000×1000 time about fourfold (see BENCHMARKS.md). JV's
-// reduction transfer step made the same problems slower here and is not
-// used. Workspace.NoInit turns the start off.
+// Before the searches, a square problem is started with the column reduction
+// of Jonker and Volgenant (v_j = min_i C_ij, u = 0; the row holding a column's
+// minimum takes that column when the row is still free) and a wide one with
+// the analogous row reduction (u_i = min_j C_ij, v = 0, which keeps the
+// rectangular sign condition; Crouse notes that JV's initialisation as
+// published assumes a square matrix). Both leave the reduced costs
+// non-negative and the assigned pairs tight, so only the rows left free need
+// a search. On uniform random costs this cut the instructions of a 1000×1000
+// solve about fivefold (see BENCHMARKS.md). JV's reduction transfer step made
+// the same problems slower here and is not used. With [Workspace.NoInit] the
+// solver follows Crouse's pseudocode exactly, except that instead of shifting
+// the matrix by its minimum m the row duals start at u_i = m, which has the
+// same effect without copying the costs.
 //
 // Tall problems (r > c) are solved on the transpose. The worst-case cost is
 // O(r²·c) for r ≤ c.
