@@ -1,8 +1,9 @@
 // Package result holds the complete outcome of a trackgate run and reads and
 // writes it as versioned JSON.
 //
-// The model itself (Suite, Scenario, Run, Check ...) is in result.go. This
-// file documents the file format and the shard merge.
+// The model (Suite, Scenario, Run, Check ...) carries data only; checking,
+// metrics and rendering live in other packages. What follows describes the
+// file format and the merge of shard results.
 //
 // # File format
 //
