@@ -65,14 +65,16 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 	for j := range order {
 		order[j] = j
 	}
-	sort.SliceStable(order, func(a, b int) bool { return dets[order[a]].Z[0] < dets[order[b]].Z[0] })
+	slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(dets[a].Z[0], dets[b].Z[0]) })
 	for i := 0; i < r; i++ {
 		if err := e.f.ProjectTo(&projs[i], xs[i], ps[i]); err != nil {
 			return Detail{}, fmt.Errorf("tracker: step %d: object %q: %w", step, ids[i], err)
 		}
 		cm.Miss[i] = e.missCost
 		pr := &projs[i]
-		half := math.Sqrt(e.gamma * pr.S[0])
+		// Widened by a relative 1e-9 so that rounding in the window never
+		// drops a pair the full test d² ≤ γ would accept.
+		half := float64(math.Sqrt(float64(e.gamma*pr.S[0])) * (1 + 1e-9))
 		lo, hi := pr.Zhat[0]-half, pr.Zhat[0]+half
 		a := sort.Search(len(order), func(q int) bool { return dets[order[q]].Z[0] >= lo })
 		var g []Entry
@@ -83,7 +85,7 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 				g = append(g, Entry{Col: j, Cost: -e.logPD - pr.LogLikelihood(d2) + e.logLambda})
 			}
 		}
-		sort.Slice(g, func(a, b int) bool { return g[a].Col < g[b].Col })
+		slices.SortFunc(g, func(a, b Entry) int { return cmp.Compare(a.Col, b.Col) })
 		cm.Gated[i] = g
 	}
 
