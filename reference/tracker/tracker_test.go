@@ -6,6 +6,8 @@ import (
 	"sort"
 	"testing"
 
+	"gonum.org/v1/gonum/mat"
+
 	"trackgate/harness/mot"
 	"trackgate/reference/assign"
 )
@@ -453,5 +455,46 @@ func TestLifecycle(t *testing.T) {
 			t.Fatalf("step %d: Step and StepFrom differ: cost %g/%g, best %g/%g", k, d.Cost, d2.Cost, d.BestProb, d2.BestProb)
 		}
 		prev = fr
+	}
+}
+
+// TestGatingMatchesAllPairs checks the sorted-window prefilter: the gated
+// pairs must be exactly those with d² ≤ γ over all pairs, with d² computed
+// here by solving S y = ν with gonum (S = P + R for the position model).
+func TestGatingMatchesAllPairs(t *testing.T) {
+	rng := rand.New(rand.NewPCG(20261201, 13))
+	gamma := 13.815510557964274 // χ²₂⁻¹(0.999), CHECK-VALUES §6.2
+	for trial := 0; trial < 300; trial++ {
+		md := posModel(0, 1, 0.9, 0.01, 0.999)
+		states, scan := randomScan(rng, 1+rng.IntN(20), rng.IntN(30), 10+rng.Float64()*40)
+		d, err := StepFrom(md, states, scan, 1, -1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, s := range states {
+			sm := mat.NewSymDense(2, []float64{s.Cov.Data[0] + 1, s.Cov.Data[1], s.Cov.Data[2], s.Cov.Data[3] + 1})
+			var chol mat.Cholesky
+			if !chol.Factorize(sm) {
+				t.Fatal("S not positive definite")
+			}
+			gated := map[int]bool{}
+			for _, e := range d.Costs.Gated[i] {
+				gated[e.Col] = true
+			}
+			for j, det := range scan.Detections {
+				nu := mat.NewVecDense(2, []float64{det.Z[0] - s.Mean[0], det.Z[1] - s.Mean[1]})
+				var y mat.VecDense
+				if err := chol.SolveVecTo(&y, nu); err != nil {
+					t.Fatal(err)
+				}
+				d2 := mat.Dot(nu, &y)
+				if math.Abs(d2-gamma) < 1e-9*gamma {
+					continue // on the boundary: either answer is right
+				}
+				if (d2 <= gamma) != gated[j] {
+					t.Fatalf("trial %d: object %d, detection %d: d² = %.12g, gated %v", trial, i, j, d2, gated[j])
+				}
+			}
+		}
 	}
 }
