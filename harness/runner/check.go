@@ -1,0 +1,348 @@
+package runner
+
+import (
+	"context"
+	"fmt"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"sync"
+	"time"
+
+	"trackgate/harness/compare"
+	"trackgate/harness/driver"
+	"trackgate/harness/golden"
+	"trackgate/harness/mot"
+	"trackgate/harness/result"
+	"trackgate/harness/scenario"
+	"trackgate/harness/sim"
+	"trackgate/reference/tracker"
+)
+
+// Timing splits the wall-clock time of a Check between the tracker phase
+// (driver.RunMany: the tracker processes and the protocol exchange) and the
+// harness (loading, simulation, the reference, comparison, metrics).
+type Timing struct {
+	Total, Tracker, Harness time.Duration
+}
+
+// scen is one scenario of a suite being checked.
+type scen struct {
+	file    string
+	spec    *scenario.Spec
+	sim     *sim.Sim
+	err     error
+	profile compare.Profile
+	tie     float64
+	pos     []int
+	vel     []int
+	planned int
+	jobs    []*job
+}
+
+// job is one (scenario, run) pair.
+type job struct {
+	sc     *scen
+	index  int
+	run    mot.Run
+	ex     tracker.Expected
+	refErr error
+	res    driver.Result
+	names  map[string]string
+	out    result.Run
+	score  *runScore // the tracker's metrics
+	refSc  *runScore // the reference's metrics on the same run
+	// blessed holds the tracker's blessed whole-run metrics, when read.
+	blessed map[string]float64
+	ties    map[string]int // object → first step of a tie (reference check)
+	secs    float64
+}
+
+// Check runs the regression gate described by o and returns its result.
+// The error is for options that make every run impossible (no tracker, no
+// scenario file, an unknown profile); everything that goes wrong with a
+// scenario, a golden or the tracker is recorded in the Suite's statuses.
+func Check(ctx context.Context, o Options) (*result.Suite, error) {
+	s, _, err := CheckTimed(ctx, o)
+	return s, err
+}
+
+// CheckTimed is Check that also reports where the time went.
+func CheckTimed(ctx context.Context, o Options) (*result.Suite, Timing, error) {
+	var tm Timing
+	start := time.Now()
+	s, err := resolve(o, true)
+	if err != nil {
+		return nil, tm, err
+	}
+	scens := s.load()
+	jobs := s.plan(scens, func(sc *scen, r int) bool { return s.Shard.Holds(sc.spec.Name, r) })
+	s.parallel(len(jobs), func(i int) { s.prepareJob(jobs[i]) })
+	t0 := time.Now()
+	s.drive(ctx, jobs)
+	tm.Tracker = time.Since(t0)
+	s.parallel(len(jobs), func(i int) { s.judge(jobs[i]) })
+	suite := s.assemble(scens)
+	tm.Total = time.Since(start)
+	tm.Harness = tm.Total - tm.Tracker
+	return suite, tm, nil
+}
+
+// load reads every scenario; a scenario that cannot be loaded or simulated
+// keeps its error.
+func (s *settings) load() []*scen {
+	scens := make([]*scen, len(s.files))
+	s.parallel(len(s.files), func(i int) {
+		sc := &scen{file: s.files[i]}
+		scens[i] = sc
+		spec, err := scenario.Load(sc.file)
+		if err != nil {
+			sc.err = err
+			return
+		}
+		sc.spec = spec
+		if sc.sim, err = sim.Prepare(spec); err != nil {
+			sc.err = fmt.Errorf("%s: %v", sc.file, err)
+			return
+		}
+		sc.profile, sc.tie = s.cfg.For(spec.Name)
+		sc.pos, sc.vel = axes(spec)
+		sc.planned = spec.Runs
+		if s.Runs > 0 {
+			sc.planned = s.Runs
+		}
+	})
+	return scens
+}
+
+// plan lists the jobs of the runs keep selects, in (scenario, run) order.
+func (s *settings) plan(scens []*scen, keep func(*scen, int) bool) []*job {
+	var jobs []*job
+	for _, sc := range scens {
+		if sc.err != nil {
+			continue
+		}
+		for r := 0; r < sc.planned; r++ {
+			if keep(sc, r) {
+				j := &job{sc: sc, index: r}
+				sc.jobs = append(sc.jobs, j)
+				jobs = append(jobs, j)
+			}
+		}
+	}
+	return jobs
+}
+
+// prepareJob simulates the run and runs the reference over it.
+func (s *settings) prepareJob(j *job) {
+	j.run = j.sc.sim.Run(j.index)
+	spec := j.sc.spec
+	j.ex, j.refErr = tracker.RunAll(tracker.Config{Model: spec.Model, Objects: objectsOf(spec), K: s.K}, j.run)
+}
+
+// drive runs the tracker over every job whose reference succeeded.
+func (s *settings) drive(ctx context.Context, jobs []*job) {
+	var djobs []driver.Job
+	var idx []int
+	for i, j := range jobs {
+		if j.refErr == nil {
+			djobs = append(djobs, driver.JobFor(j.sc.spec, j.run))
+			idx = append(idx, i)
+		}
+	}
+	t0 := time.Now()
+	res := driver.RunMany(ctx, s.drv, djobs, s.workers)
+	per := 0.0
+	if len(djobs) > 0 {
+		per = time.Since(t0).Seconds() * float64(s.workers) / float64(len(djobs))
+	}
+	for k, i := range idx {
+		jobs[i].res = res[k]
+		jobs[i].secs = per
+	}
+}
+
+// parallel calls f(0..n-1) on up to s.workers goroutines.
+func (s *settings) parallel(n int, f func(int)) {
+	w := min(s.workers, n)
+	if w <= 1 {
+		for i := 0; i < n; i++ {
+			f(i)
+		}
+		return
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range w {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				f(i)
+			}
+		}()
+	}
+	for i := 0; i < n; i++ {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+}
+
+// judge fills j.out: every check of the run, its metrics and its trace.
+func (s *settings) judge(j *job) {
+	r := &j.out
+	r.Index, r.Seed = j.index, j.run.Seed
+	if s.Timing {
+		r.Seconds = j.secs
+	}
+	if j.refErr != nil {
+		r.Status = result.Error
+		r.Checks = []result.Check{{Name: "reference", Status: result.Error,
+			Message: fmt.Sprintf("the reference tracker failed on this run, nothing was compared: %v", j.refErr)}}
+		return
+	}
+	n := len(j.res.Frames)
+	opts := compare.Options{Position: j.sc.pos, Cutoff: s.cutoff}
+	al, err := compare.Align(j.ex.Frames[:n], j.res.Frames, opts)
+	if err != nil {
+		r.Checks = append(r.Checks, result.Check{Name: "alignment", Status: result.Error,
+			Message: fmt.Sprintf("the tracker's tracks could not be paired with the reference's: %v", err)})
+	} else {
+		j.names = al.Names
+		if s.against != AgainstGolden {
+			r.Checks = append(r.Checks, s.checkReference(j))
+			if j.res.Tracker.Covariance {
+				r.Checks = append(r.Checks, s.checkConformance(j))
+			}
+			r.Checks = append(r.Checks, s.checkIdentity(j, opts))
+		}
+	}
+	s.scoreJob(j)
+	if s.against != AgainstReference && j.index < s.goldenRunsOf(j.sc) {
+		r.Checks = append(r.Checks, s.checkGolden(j)...)
+	}
+	if f := j.res.Fault; f != nil {
+		r.Fault = &result.Fault{Class: f.Class.String(), Step: f.Step, Line: f.Line,
+			Message: f.Detail, Excerpt: f.Excerpt, Stderr: f.Stderr}
+		msg := fmt.Sprintf("the tracker faulted (%s) at step %d: %s", f.Class, f.Step, f.Detail)
+		if n < len(j.run.Scans) {
+			msg += fmt.Sprintf("; only the %d frames before it were compared", n)
+		}
+		r.Checks = append(r.Checks, result.Check{Name: "tracker", Status: result.Faulted, Message: msg,
+			First: &result.Divergence{Step: f.Step, Kind: "fault", Message: msg}})
+	}
+	r.Status = result.Pass
+	for _, c := range r.Checks {
+		r.Status = result.Worst(r.Status, c.Status)
+	}
+	if j.score != nil {
+		r.Metrics = j.score.metrics
+	}
+	if s.AllTraces || j.index == 0 || r.Status.Rank() > result.Tie.Rank() {
+		r.Trace = s.trace(j)
+	}
+}
+
+// goldenRunsOf is G for one scenario.
+func (s *settings) goldenRunsOf(sc *scen) int { return min(sc.planned, s.gRuns) }
+
+// assemble builds the suite from the judged jobs.
+func (s *settings) assemble(scens []*scen) *result.Suite {
+	suite := &result.Suite{
+		Version:  result.Version,
+		Tool:     s.Tool,
+		Platform: platform(),
+		Tracker:  result.Tracker{Command: append([]string(nil), s.argv...)},
+		Against:  string(s.against),
+		Shard:    s.Shard.Result(),
+		Status:   result.Pass,
+	}
+	if suite.Tool == "" {
+		suite.Tool = "trackgate " + golden.ModuleVersion()
+	}
+	for _, sc := range scens {
+		out := result.Scenario{File: sc.file, Status: result.Pass}
+		if sc.err != nil {
+			out.Name = strings.TrimSuffix(filepath.Base(sc.file), filepath.Ext(sc.file))
+			out.Status = result.Error
+			suite.Notes = append(suite.Notes, fmt.Sprintf("scenario %s not run: %v", sc.file, sc.err))
+			suite.Scenarios = append(suite.Scenarios, out)
+			suite.Status = result.Worst(suite.Status, out.Status)
+			continue
+		}
+		spec := sc.spec
+		out.Name, out.Description, out.Hash = spec.Name, spec.Description, spec.Hash
+		out.StateDim, out.MeasDim, out.Position = spec.Model.StateDim, spec.Model.MeasDim, sc.pos
+		out.RunsPlanned = sc.planned
+		for _, j := range sc.jobs {
+			out.Runs = append(out.Runs, j.out)
+			out.Status = result.Worst(out.Status, j.out.Status)
+			if suite.Tracker.Name == "" && j.res.Tracker.Name != "" {
+				suite.Tracker.Name, suite.Tracker.Version = j.res.Tracker.Name, j.res.Tracker.Version
+			}
+		}
+		if len(sc.jobs) == sc.planned && sc.planned > 0 {
+			out.Metrics = s.aggregate(sc)
+			out.Gates = s.gates(sc)
+			for _, g := range out.Gates {
+				// A gate that could not be judged (too few runs) is
+				// reported but does not mark the scenario skipped.
+				if g.Status.Rank() > result.Skip.Rank() {
+					out.Status = result.Worst(out.Status, g.Status)
+				}
+			}
+		}
+		suite.Scenarios = append(suite.Scenarios, out)
+		suite.Status = result.Worst(suite.Status, out.Status)
+	}
+	return suite
+}
+
+// platform describes the running binary.
+func platform() result.Platform {
+	p := golden.ThisPlatform()
+	return result.Platform{GoVersion: runtime.Version(), GOOS: p.OS, GOARCH: p.Arch, GOAMD64: p.AMD64}
+}
+
+// axes returns the position and velocity components of a scenario's state:
+// per-axis [position, velocity] pairs for constant velocity and constant
+// turn, every component a position for a random walk (scenarios/README.md).
+func axes(spec *scenario.Spec) (pos, vel []int) {
+	switch spec.Motion.Kind {
+	case scenario.ConstantVelocity, scenario.ConstantTurn:
+		for a := 0; a < spec.Motion.Axes; a++ {
+			pos = append(pos, 2*a)
+			vel = append(vel, 2*a+1)
+		}
+	default:
+		for i := 0; i < spec.Model.StateDim; i++ {
+			pos = append(pos, i)
+		}
+	}
+	return pos, vel
+}
+
+// objectsOf returns the scenario's objects as the reference takes them.
+func objectsOf(spec *scenario.Spec) []mot.Object {
+	objs := make([]mot.Object, len(spec.Objects))
+	for i, o := range spec.Objects {
+		objs[i] = o.Object
+	}
+	return objs
+}
+
+// ExitCode maps a suite status to trackgate's exit codes: pass, tie and skip
+// 0; fail (a regression) 1; error (a bad scenario, a stale golden, a harness
+// failure) 2; fault (the tracker itself failed) 3.
+func ExitCode(s result.Status) int {
+	switch s {
+	case result.Pass, result.Tie, result.Skip:
+		return 0
+	case result.Fail:
+		return 1
+	case result.Faulted:
+		return 3
+	}
+	return 2
+}

@@ -1,0 +1,97 @@
+// Package runner is trackgate's regression gate engine: it loads scenarios,
+// simulates their runs, runs the reference tracker and the tracker under test,
+// compares the two (and the blessed golden files), scores both against the
+// ground truth and fills one result.Suite that every report is drawn from.
+// The trackgate check, bless and explain commands are thin layers over Check,
+// Bless and Explain, and Go tests call the same functions.
+//
+// # Pipeline
+//
+// For every scenario and every run held by the shard: sim.Prepare and Run give
+// the scans and the truth, tracker.RunAll the reference's frames and per-step
+// detail, driver.RunMany the tracker's frames; then the checks below run and
+// the metrics are computed. Work is spread over Options.Workers goroutines,
+// but every result lands in a slot fixed by (scenario, run), so the Suite
+// is the same, byte for byte once encoded, whatever the worker count.
+//
+// # Checks against the reference
+//
+// Track names are first paired over the whole run (compare.Align), so that a
+// tracker may call its tracks anything and list tracks or detections in any
+// order. Then, for each run:
+//
+//   - reference: step by step, every paired track's association is compared
+//     with the reference's. Let m be the reference's margin at the step,
+//     cost(2nd best hypothesis) − cost(best), and τ the ambiguity threshold
+//     (tie_margin of the project file). A changed association is a tie when
+//     m ≤ τ (an exact tie, m = 0, is always a tie) and a regression of kind
+//     "association" otherwise. The probability the reference gives the
+//     tracker's joint association is reported when that hypothesis is among
+//     its k best. Estimates are compared with the tolerance profile until the
+//     object's first tie or divergence; later steps of that object are not
+//     compared (the message says so), since after a legitimately different
+//     choice the two runs need not agree. Tracks for objects that are not
+//     alive, and live objects without a track, are divergences of kind
+//     "track-count".
+//   - conformance (trackers that report covariances): at each step k the
+//     reference restarts from the tracker's own estimates at step k−1
+//     (tracker.StepFrom; objects appearing at k start from their priors),
+//     predicts, associates and updates, and the tracker's step k is compared
+//     with that: its association (tie or regression, by that step's margin),
+//     and, given the tracker's own association, its updated mean and
+//     covariance against the Kalman update (package kalman) with the
+//     detection it chose. A fault is thus placed at one step and told apart
+//     as an association or an estimation fault, without the cascade that
+//     follows a first divergence; a tie resolved the other way passes, as
+//     the next step restarts from the tracker's state.
+//   - identity: compare.Follow matches tracks step by step; a track that
+//     changes object, or an object that changes track, is a divergence of
+//     kind "identity".
+//
+// # Checks against golden files
+//
+// For the first GoldenRuns runs of a scenario (3 by default) the golden
+// folder holds the scan tape, the reference's frames and metrics and, per
+// tracker name, the tracker's frames and metrics (layout in package golden).
+// A stale golden (its scenario file changed) is never compared and makes
+// the run an error; a tape or reference golden that differs from what the
+// simulator and the reference produce now is an error naming them (the
+// harness changed, not the tracker); the tracker's frames are compared with
+// its blessed frames after alignment, under the same profile and tie rule,
+// and its metrics under the profile's metric rule. A failing comparison
+// leaves the actual output beside the golden as <golden>.actual (or under
+// Options.Out; in CI mode only there). A missing golden is skipped, or a
+// failure in CI mode.
+//
+// # Metrics
+//
+// Per run, on the position components: GOSPA per step (p = 2, α = 2, cut-off
+// c = Options.Cutoff, default DefaultCutoff metres) between the true
+// positions and the track positions; the per-step matching of that GOSPA
+// maps tracks to objects for the identity switches, false tracks, missed
+// objects and position RMSE of metrics.ScoreRun and for the NEES of matched
+// tracks that report covariances. Per scenario: the mean GOSPA per step over
+// runs, the average NEES per step with its chi-square band at 95 % and the
+// fraction of steps inside it. Gates from the project file are judged on
+// per-run values: an absolute gate on the mean over runs, a paired gate
+// (metrics.Paired) against a baseline on the same seeds: the blessed
+// metrics of the tracker when at least two runs have them and goldens are
+// compared, the reference's metrics otherwise.
+//
+// # Statuses and exit codes
+//
+// A run takes the worst status of its checks (result.Worst); a fault of the
+// tracker makes it "fault", which outranks a regression. ExitCode maps a
+// suite status to the command's exit code: 0 pass or tie, 1 regression,
+// 2 error (bad scenario, stale golden, harness failure), 3 tracker fault.
+//
+// References:
+//   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
+//     optimal sub-pattern assignment metric", FUSION 2017 (GOSPA, p = 2, α = 2).
+//   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications to
+//     Tracking and Navigation", Wiley, 2001, §5.2 (Kalman update) and §5.4
+//     (NEES and its chi-square acceptance interval).
+//   - K. G. Murty, "An algorithm for ranking all the assignments in order of
+//     increasing cost", Operations Research 16(3):682–687, 1968 (the k best
+//     hypotheses whose margin decides a tie).
+package runner

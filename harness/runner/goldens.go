@@ -1,0 +1,584 @@
+package runner
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"trackgate/harness/compare"
+	"trackgate/harness/golden"
+	"trackgate/harness/mot"
+	"trackgate/harness/result"
+)
+
+// artefact is one golden file of one run: what this run would write there
+// and what a comparison with the file on disk found.
+type artefact struct {
+	what   string // "scan tape", "reference output", ...
+	id     golden.ID
+	path   string
+	file   golden.File
+	status golden.Status
+	// harness is true for the files the tracker does not produce (tape,
+	// reference output and metrics): a difference there means trackgate
+	// itself changed.
+	harness bool
+	// found holds what the comparison found (empty when passing).
+	detail string
+	check  *builder
+	// blessed is the file read from disk (fresh goldens only).
+	blessed golden.File
+}
+
+// artefacts lists the golden files of job j. withTracker adds the
+// tracker's output and metrics.
+func (s *settings) artefacts(j *job, withTracker bool) ([]*artefact, error) {
+	spec := j.sc.spec
+	mk := func(what string, kind golden.Kind, trk string, proto int, harness bool) (*artefact, error) {
+		id := golden.ID{Scenario: spec.Name, Tracker: trk, Run: j.index, Kind: kind}
+		p, err := golden.Path(s.goldenRoot, id)
+		if err != nil {
+			return nil, err
+		}
+		h := golden.NewHeader(kind, spec.Name, spec.Hash, j.index, j.run.Seed, proto)
+		h.Tracker = trk
+		return &artefact{what: what, id: id, path: p, file: golden.File{Header: h}, harness: harness}, nil
+	}
+	var out []*artefact
+	a, err := mk("scan tape", golden.Tape, "", 0, true)
+	if err != nil {
+		return nil, err
+	}
+	for k := range j.run.Scans {
+		a.file.Steps = append(a.file.Steps, golden.Step{Scan: j.run.Scans[k], Truth: j.run.Truth[k]})
+	}
+	out = append(out, a)
+	if a, err = mk("reference output", golden.Reference, "", 0, true); err != nil {
+		return nil, err
+	}
+	a.file.Frames = j.ex.Frames
+	out = append(out, a)
+	if j.refSc != nil && j.refSc.err == nil {
+		if a, err = mk("reference metrics", golden.Metrics, "", 0, true); err != nil {
+			return nil, err
+		}
+		a.file.Metrics = records(j.refSc)
+		out = append(out, a)
+	}
+	if withTracker {
+		if a, err = mk("tracker output", golden.Output, s.name, j.res.Tracker.Protocol, false); err != nil {
+			return nil, err
+		}
+		a.file.Frames = j.res.Frames
+		out = append(out, a)
+		if j.score != nil {
+			if a, err = mk("tracker metrics", golden.Metrics, s.name, j.res.Tracker.Protocol, false); err != nil {
+				return nil, err
+			}
+			a.file.Metrics = records(j.score)
+			out = append(out, a)
+		}
+	}
+	return out, nil
+}
+
+// records turns a run's metrics into golden metric records: the per-step
+// series, then the whole-run values in name order.
+func records(rs *runScore) []golden.Metric {
+	var out []golden.Metric
+	for k, g := range rs.metrics.GOSPA {
+		out = append(out, golden.Metric{Name: MetricGOSPAStep, Step: k, Value: g})
+	}
+	for k, vals := range rs.nees {
+		if len(vals) > 0 {
+			out = append(out, golden.Metric{Name: MetricNEESStep, Step: k, Value: mean(vals)})
+		}
+	}
+	names := make([]string, 0, len(rs.whole))
+	for n := range rs.whole {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		out = append(out, golden.Metric{Name: n, Step: -1, Value: rs.whole[n]})
+	}
+	return out
+}
+
+// metricMap keys metric records by name ("gospa[3]" for a step value).
+func metricMap(ms []golden.Metric) map[string]float64 {
+	out := make(map[string]float64, len(ms))
+	for _, m := range ms {
+		if m.Step < 0 {
+			out[m.Name] = m.Value
+		} else {
+			out[fmt.Sprintf("%s[%d]", m.Name, m.Step)] = m.Value
+		}
+	}
+	return out
+}
+
+// judgeArtefact reads a's golden and compares it with what the run
+// produced, setting a.status and a.check.
+func (s *settings) judgeArtefact(j *job, a *artefact) {
+	a.check = newBuilder("golden", s.maxDiffs)
+	f, fr, err := golden.ReadFresh(a.path, j.sc.spec.Name, j.sc.spec.Hash)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		a.status = golden.Missing
+		a.detail = fmt.Sprintf("no golden %s at %s", a.what, a.path)
+		return
+	case err != nil:
+		a.status = golden.Outdated
+		a.detail = fmt.Sprintf("unreadable golden %s: %v", a.what, err)
+		return
+	case fr != golden.Fresh:
+		a.status = golden.Outdated
+		a.detail = fmt.Sprintf("%s golden %s (made from another version of the scenario file than %s); bless again", strings.ToLower(fr.String()), a.path, j.sc.file)
+		return
+	}
+	a.blessed = f
+	a.status = golden.Passing
+	b := a.check
+	switch a.id.Kind {
+	case golden.Tape:
+		if msg := sameTape(f.Steps, j.run); msg != "" {
+			a.status = golden.Failing
+			a.detail = fmt.Sprintf("the simulator's scans differ from the golden scan tape %s: %s", a.path, msg)
+		}
+	case golden.Reference:
+		names := map[string]string{}
+		for _, fr := range f.Frames {
+			for _, t := range fr.Tracks {
+				names[t.Track] = t.Track
+			}
+		}
+		r := compare.Frames(j.sc.profile, f.Frames, a.file.Frames, names)
+		if !r.OK() {
+			a.status = golden.Failing
+			a.detail = fmt.Sprintf("the reference tracker's output differs from the golden %s: %d difference(s), first %s", a.path, len(r.Diffs), describe(r.Diffs[0]))
+			b.diffs(r.Diffs)
+		}
+	case golden.Metrics:
+		want := metricMap(f.Metrics)
+		if a.id.Tracker != "" {
+			j.blessed = map[string]float64{}
+			for _, m := range f.Metrics {
+				if m.Step < 0 {
+					j.blessed[m.Name] = m.Value
+				}
+			}
+		}
+		r := compare.Metrics(j.sc.profile, want, metricMap(a.file.Metrics))
+		if !r.OK() {
+			a.status = golden.Failing
+			a.detail = fmt.Sprintf("%s differ from the golden %s: %d difference(s), first %s", a.what, a.path, len(r.Diffs), describe(r.Diffs[0]))
+			b.diffs(r.Diffs)
+		}
+	case golden.Output:
+		s.judgeOutput(j, a, f)
+	}
+}
+
+// judgeOutput compares the tracker's frames with its blessed frames.
+func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
+	b := a.check
+	got := j.res.Frames
+	al, err := compare.Align(f.Frames, got, compare.Options{Position: j.sc.pos, Cutoff: s.cutoff})
+	if err != nil {
+		a.status = golden.Failing
+		a.detail = fmt.Sprintf("the tracker's tracks could not be paired with the golden %s: %v", a.path, err)
+		return
+	}
+	// Associations, step by step, judged with the reference's margin.
+	want := map[int]mot.Frame{}
+	for _, fr := range f.Frames {
+		want[fr.Step] = fr
+	}
+	strip := func(frames []mot.Frame) []mot.Frame {
+		out := make([]mot.Frame, len(frames))
+		for i, fr := range frames {
+			out[i] = mot.Frame{Step: fr.Step, Tracks: make([]mot.Estimate, len(fr.Tracks))}
+			for t, e := range fr.Tracks {
+				e.HasDetection = false
+				out[i].Tracks[t] = e
+			}
+		}
+		return out
+	}
+	for k, fr := range got {
+		wf, ok := want[fr.Step]
+		if !ok {
+			continue
+		}
+		byName := map[string]mot.Estimate{}
+		for _, t := range wf.Tracks {
+			byName[t.Track] = t
+		}
+		var changed []string
+		var msgs []string
+		for _, t := range fr.Tracks {
+			w, ok := byName[al.Names[t.Track]]
+			if !ok || !w.HasDetection || !t.HasDetection || w.Detection == t.Detection {
+				continue
+			}
+			changed = append(changed, w.Track)
+			msgs = append(msgs, fmt.Sprintf("track %s (blessed %s): blessed %s, now %s", t.Track, w.Track, detName(w.Detection), detName(t.Detection)))
+		}
+		if len(changed) == 0 {
+			continue
+		}
+		div := result.Divergence{Step: fr.Step, Kind: "association", Objects: changed, Message: strings.Join(msgs, "; ")}
+		if k < len(j.ex.Steps) {
+			m := j.ex.Steps[k].Margin
+			if !math.IsInf(m, 0) {
+				div.Margin = &m
+			}
+			if isTie(m, j.sc.tie) {
+				div.Message += "; the reference's margin is within the ambiguity threshold"
+				b.tie(div)
+				continue
+			}
+		}
+		b.fail(div)
+	}
+	r := compare.Frames(j.sc.profile, strip(f.Frames), strip(got), al.Names)
+	for _, d := range r.Diffs {
+		var step int
+		fmt.Sscanf(d.Path, "step %d", &step)
+		kind := "estimate"
+		if d.Kind == compare.Missing || d.Kind == compare.Extra {
+			kind = "track-count"
+		}
+		b.fail(result.Divergence{Step: step, Kind: kind, Message: "against the blessed output: " + describe(d)})
+	}
+	b.diffs(r.Diffs)
+	if b.c.Status == result.Fail {
+		a.status = golden.Failing
+		a.detail = fmt.Sprintf("the tracker's output differs from its golden %s", a.path)
+	}
+}
+
+// sameTape compares a golden tape with a simulated run bit for bit and
+// says where they first differ ("" when they agree).
+func sameTape(steps []golden.Step, run mot.Run) string {
+	if len(steps) != len(run.Scans) {
+		return fmt.Sprintf("%d steps blessed, %d simulated", len(steps), len(run.Scans))
+	}
+	same := func(a, b []float64) bool {
+		if len(a) != len(b) {
+			return false
+		}
+		for i := range a {
+			if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+				return false
+			}
+		}
+		return true
+	}
+	for k, st := range steps {
+		sc, tr := run.Scans[k], run.Truth[k]
+		if st.Scan.Step != sc.Step || math.Float64bits(st.Scan.Time) != math.Float64bits(sc.Time) {
+			return fmt.Sprintf("step %d: step number or time changed", k)
+		}
+		if len(st.Scan.Detections) != len(sc.Detections) {
+			return fmt.Sprintf("step %d: %d detections blessed, %d simulated", k, len(st.Scan.Detections), len(sc.Detections))
+		}
+		for i, d := range st.Scan.Detections {
+			if d.ID != sc.Detections[i].ID || !same(d.Z, sc.Detections[i].Z) {
+				return fmt.Sprintf("step %d: detection %d changed", k, d.ID)
+			}
+		}
+		if len(st.Truth.Objects) != len(tr.Objects) {
+			return fmt.Sprintf("step %d: %d objects blessed, %d simulated", k, len(st.Truth.Objects), len(tr.Objects))
+		}
+		for i, o := range st.Truth.Objects {
+			if o.Object != tr.Objects[i].Object || !same(o.X, tr.Objects[i].X) {
+				return fmt.Sprintf("step %d: the true state of %s changed", k, o.Object)
+			}
+		}
+		if len(st.Truth.Origins) != len(tr.Origins) {
+			return fmt.Sprintf("step %d: detection origins changed", k)
+		}
+		for i, o := range st.Truth.Origins {
+			if o != tr.Origins[i] {
+				return fmt.Sprintf("step %d: the origin of detection %d changed", k, o.Detection)
+			}
+		}
+	}
+	return ""
+}
+
+// checkGolden compares run j with its golden files.
+func (s *settings) checkGolden(j *job) []result.Check {
+	arts, err := s.artefacts(j, true)
+	if err != nil {
+		return []result.Check{{Name: "golden", Status: result.Error, Message: err.Error()}}
+	}
+	ci := s.ci()
+	out := newBuilder("golden", s.maxDiffs)
+	var msgs []string
+	for _, a := range arts {
+		s.judgeArtefact(j, a)
+		if a.id.Kind == golden.Output && j.res.Fault != nil && a.status == golden.Missing {
+			continue
+		}
+		switch a.status {
+		case golden.Passing:
+		case golden.Missing:
+			if ci {
+				out.c.Status = result.Worst(out.c.Status, result.Fail)
+				msgs = append(msgs, a.detail+" (CI mode: a missing golden fails)")
+			} else {
+				out.c.Status = result.Worst(out.c.Status, result.Skip)
+				msgs = append(msgs, a.detail+"; run trackgate bless to create it")
+			}
+		case golden.Outdated:
+			out.c.Status = result.Error
+			msgs = append(msgs, a.detail)
+		case golden.Failing:
+			if a.harness {
+				out.c.Status = result.Error
+				msgs = append(msgs, a.detail+" (trackgate itself changed, not the tracker)")
+			} else {
+				msgs = append(msgs, a.detail)
+				if p := s.leaveActual(a, ci); p != "" {
+					msgs = append(msgs, "actual output left at "+p)
+				}
+			}
+		}
+		c := a.check.c
+		if c.First != nil && out.c.First == nil {
+			out.c.First = c.First
+		}
+		out.c.Ties = append(out.c.Ties, c.Ties...)
+		if !a.harness {
+			out.c.Status = result.Worst(out.c.Status, c.Status)
+		}
+		for _, d := range c.Diffs {
+			if len(out.c.Diffs) < s.maxDiffs {
+				out.c.Diffs = append(out.c.Diffs, d)
+			} else {
+				out.c.Truncated++
+			}
+		}
+		out.c.Truncated += c.Truncated
+	}
+	if len(msgs) == 0 {
+		msgs = append(msgs, fmt.Sprintf("%d golden files agree", len(arts)))
+	}
+	return []result.Check{out.done(strings.Join(msgs, "; "))}
+}
+
+// leaveActual writes the actual output of a failing golden for review:
+// beside the golden as <golden>.actual, or under Options.Out in the golden
+// layout; in CI mode only under Out. It returns the path written, or "".
+func (s *settings) leaveActual(a *artefact, ci bool) string {
+	p := a.path + ".actual"
+	if s.Out != "" {
+		rel, err := filepath.Rel(s.goldenRoot, a.path)
+		if err != nil {
+			return ""
+		}
+		p = filepath.Join(s.Out, rel) + ".actual"
+	} else if ci {
+		return ""
+	}
+	if err := golden.Write(p, a.file); err != nil {
+		return ""
+	}
+	return p
+}
+
+// BlessOptions configure Bless.
+type BlessOptions struct {
+	Options
+	// All rewrites every golden; by default only goldens that are
+	// missing, stale or fail their tolerance are written, so passing
+	// goldens keep their bytes.
+	All bool
+	// Prune removes orphaned goldens (see golden.Tree.Orphans). Orphans
+	// are only looked for when the scenario list comes from the project
+	// file, no shard or run override is set and every scenario loaded.
+	Prune bool
+	// MidWrite, when set, is called with the golden's path after the first
+	// half of its bytes has reached the temporary file; tests use it to
+	// interrupt a write.
+	MidWrite func(path string)
+}
+
+// BlessReport says what Bless did. Paths are relative to the golden root.
+type BlessReport struct {
+	// Root is the golden folder.
+	Root string
+	// Written were rewritten because they failed their tolerance or were
+	// stale; New did not exist; Unchanged agree within tolerance and kept
+	// their bytes; Refused are those CI mode would have had to write.
+	Written, New, Unchanged, Refused []string
+	// Orphans are goldens no scenario uses any more; Pruned reports that
+	// they were removed.
+	Orphans []string
+	Pruned  bool
+	// Problems lists runs that could not be blessed (a scenario that does
+	// not load, a reference failure, a tracker fault); nothing was written
+	// for the tracker on those runs.
+	Problems []string
+	// Faulted reports that the tracker faulted on some run.
+	Faulted bool
+	// CI reports that CI mode forbade writing.
+	CI bool
+}
+
+// ExitCode is the command's exit code for the report: 3 when the tracker
+// faulted, 2 for other problems, 1 when CI mode refused to write, else 0.
+func (r *BlessReport) ExitCode() int {
+	switch {
+	case r.Faulted:
+		return 3
+	case len(r.Problems) > 0:
+		return 2
+	case len(r.Refused) > 0:
+		return 1
+	}
+	return 0
+}
+
+// Bless runs the tracker and the reference on the first G runs of every
+// scenario and records their goldens (see the package documentation).
+func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
+	s, err := resolve(o.Options, true)
+	if err != nil {
+		return nil, err
+	}
+	mode := golden.UpdateFailing
+	if o.All {
+		mode = golden.UpdateAll
+	}
+	pol := golden.NewPolicy(mode, s.CI, s.getenv)
+	rep := &BlessReport{Root: s.goldenRoot, CI: pol.CI}
+	scens := s.load()
+	for _, sc := range scens {
+		if sc.err != nil {
+			rep.Problems = append(rep.Problems, fmt.Sprintf("scenario %s: %v", sc.file, sc.err))
+		}
+	}
+	jobs := s.plan(scens, func(sc *scen, r int) bool { return r < s.goldenRunsOf(sc) && s.Shard.Holds(sc.spec.Name, r) })
+	s.parallel(len(jobs), func(i int) { s.prepareJob(jobs[i]) })
+	s.drive(ctx, jobs)
+	arts := make([][]*artefact, len(jobs))
+	errs := make([]error, len(jobs))
+	s.parallel(len(jobs), func(i int) {
+		j := jobs[i]
+		if j.refErr != nil {
+			return
+		}
+		s.scoreJob(j)
+		clean := j.res.Fault == nil && j.score != nil
+		arts[i], errs[i] = s.artefacts(j, clean)
+		for _, a := range arts[i] {
+			s.judgeArtefact(j, a)
+		}
+	})
+	for i, j := range jobs {
+		where := fmt.Sprintf("%s run %d", j.sc.spec.Name, j.index)
+		switch {
+		case j.refErr != nil:
+			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the reference tracker failed: %v", where, j.refErr))
+			continue
+		case errs[i] != nil:
+			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: %v", where, errs[i]))
+			continue
+		case j.res.Fault != nil:
+			rep.Faulted = true
+			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the tracker faulted, its goldens were not written: %v", where, j.res.Fault))
+		case j.score == nil:
+			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the tracker's metrics could not be computed; its goldens were not written", where))
+		}
+		for _, a := range arts[i] {
+			rel, _ := filepath.Rel(s.goldenRoot, a.path)
+			switch pol.Decide(a.status) {
+			case golden.Keep:
+				rep.Unchanged = append(rep.Unchanged, rel)
+			case golden.Fail:
+				rep.Refused = append(rep.Refused, rel)
+			case golden.Rewrite:
+				if err := writeGolden(a.path, a.file, o.MidWrite); err != nil {
+					rep.Problems = append(rep.Problems, fmt.Sprintf("%s: writing %s: %v", where, a.path, err))
+					continue
+				}
+				if a.status == golden.Missing {
+					rep.New = append(rep.New, rel)
+				} else {
+					rep.Written = append(rep.Written, rel)
+				}
+			}
+		}
+	}
+	if s.fromConfig && s.Shard.Total == 1 && s.Runs == 0 && !anyErr(scens) {
+		tree, err := golden.Scan(s.goldenRoot)
+		if err != nil {
+			rep.Problems = append(rep.Problems, fmt.Sprintf("listing %s: %v", s.goldenRoot, err))
+			return rep, nil
+		}
+		inv := golden.Inventory{Runs: map[string]int{}}
+		if o.Tracker == nil {
+			inv.Trackers = []string{s.name}
+		}
+		for _, sc := range scens {
+			inv.Runs[sc.spec.Name] = s.goldenRunsOf(sc)
+		}
+		rep.Orphans = tree.Orphans(inv)
+		if o.Prune && len(rep.Orphans) > 0 && !pol.CI {
+			if err := tree.Remove(s.goldenRoot, rep.Orphans); err != nil {
+				rep.Problems = append(rep.Problems, fmt.Sprintf("removing orphans: %v", err))
+			} else {
+				rep.Pruned = true
+			}
+		}
+	}
+	return rep, nil
+}
+
+func anyErr(scens []*scen) bool {
+	for _, sc := range scens {
+		if sc.err != nil {
+			return true
+		}
+	}
+	return false
+}
+
+// writeGolden writes f atomically to path (golden.WriteFile), calling mid,
+// when set, after half of the bytes have been written.
+func writeGolden(path string, f golden.File, mid func(string)) error {
+	data, err := golden.Marshal(f)
+	if err != nil {
+		return err
+	}
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		return err
+	}
+	return golden.WriteFile(path, func(w io.Writer) error {
+		half := len(data) / 2
+		if _, err := w.Write(data[:half]); err != nil {
+			return err
+		}
+		if mid != nil {
+			if fl, ok := w.(interface{ Flush() error }); ok {
+				if err := fl.Flush(); err != nil {
+					return err
+				}
+			}
+			mid(path)
+		}
+		_, err := w.Write(data[half:])
+		return err
+	})
+}

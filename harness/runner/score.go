@@ -1,0 +1,292 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"trackgate/harness/config"
+	"trackgate/harness/metrics"
+	"trackgate/harness/mot"
+	"trackgate/harness/result"
+)
+
+// NEESConfidence is the probability of the two-sided chi-square band the
+// average NEES is judged against (common practice: 95 %).
+const NEESConfidence = 0.95
+
+// runScore is the metrics of one set of frames on one run.
+type runScore struct {
+	metrics *result.RunMetrics
+	// nees holds, per step, the NEES of every matched track with a
+	// covariance.
+	nees [][]float64
+	// whole maps each whole-run metric name to its value (golden records).
+	whole map[string]float64
+	err   error
+}
+
+// Whole-run metric names, as recorded in golden metrics files and as
+// gates name them.
+const (
+	MetricMeanGOSPA    = "mean_gospa"
+	MetricPositionRMSE = "position_rmse"
+	MetricIDSwitches   = "id_switches"
+	MetricTrackBreaks  = "track_breaks"
+	MetricFalseTracks  = "false_tracks"
+	MetricMissed       = "missed_objects"
+	MetricMeanNEES     = "mean_nees"
+	MetricNEESInBand   = "nees_in_band"
+	// MetricGOSPAStep and MetricNEESStep are the per-step series.
+	MetricGOSPAStep = "gospa"
+	MetricNEESStep  = "nees"
+)
+
+// gateMetrics are the metric names a gate may use; "gospa" and "nees" in a
+// gate stand for their run means.
+var gateMetrics = map[string]string{
+	MetricMeanGOSPA: MetricMeanGOSPA, MetricGOSPAStep: MetricMeanGOSPA,
+	MetricPositionRMSE: MetricPositionRMSE, MetricIDSwitches: MetricIDSwitches,
+	MetricTrackBreaks: MetricTrackBreaks, MetricFalseTracks: MetricFalseTracks,
+	MetricMissed: MetricMissed, MetricMeanNEES: MetricMeanNEES, MetricNEESStep: MetricMeanNEES,
+	MetricNEESInBand: MetricNEESInBand,
+}
+
+func gateMetricNames() []string {
+	var out []string
+	for k := range gateMetrics {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+// score computes the metrics of frames against the truth of run: GOSPA
+// per step (p = 2, α = 2, cut-off c) on the position components, and, from
+// the per-step GOSPA matching of tracks to objects, metrics.ScoreRun's
+// identity and error bookkeeping and the NEES of matched tracks.
+func score(run mot.Run, frames []mot.Frame, pos, vel []int, c float64, n int) *runScore {
+	steps := min(len(frames), len(run.Truth))
+	params := metrics.Params{Order: 2, Cutoff: c, Components: pos}
+	var ws metrics.Workspace
+	m := &result.RunMetrics{GOSPA: make([]float64, steps)}
+	mapping := make([]map[string]string, steps)
+	sum := 0.0
+	for k := 0; k < steps; k++ {
+		truth := run.Truth[k]
+		x := make([][]float64, len(truth.Objects))
+		for i, o := range truth.Objects {
+			x[i] = o.X
+		}
+		y := make([][]float64, len(frames[k].Tracks))
+		for i, t := range frames[k].Tracks {
+			y[i] = t.Mean
+		}
+		g, err := ws.GOSPA(x, y, params)
+		if err != nil {
+			return &runScore{err: fmt.Errorf("step %d: %v", k, err)}
+		}
+		m.GOSPA[k] = g.Value
+		sum += g.Value
+		mp := make(map[string]string, len(y))
+		for _, t := range frames[k].Tracks {
+			mp[t.Track] = ""
+		}
+		for i, jdx := range ws.Matches() {
+			if jdx >= 0 {
+				mp[frames[k].Tracks[jdx].Track] = truth.Objects[i].Object
+			}
+		}
+		mapping[k] = mp
+	}
+	if steps > 0 {
+		m.MeanGOSPA = sum / float64(steps)
+	}
+	sc, err := metrics.ScoreRun(run.Truth[:steps], frames[:steps], mapping, metrics.Select{Position: pos, Velocity: vel})
+	if err != nil {
+		return &runScore{err: err}
+	}
+	m.IDSwitches, m.TrackBreaks, m.FalseTracks = sc.Switches, sc.Breaks, sc.FalseTracks
+	m.MissedObjects, m.PositionRMSE = sc.MissedSteps, sc.PositionRMSE
+	rs := &runScore{metrics: m, nees: sc.NEES}
+	rs.whole = map[string]float64{
+		MetricMeanGOSPA: m.MeanGOSPA, MetricPositionRMSE: m.PositionRMSE,
+		MetricIDSwitches: float64(m.IDSwitches), MetricTrackBreaks: float64(m.TrackBreaks),
+		MetricFalseTracks: float64(m.FalseTracks), MetricMissed: float64(m.MissedObjects),
+	}
+	var all []float64
+	for _, vals := range sc.NEES {
+		if len(vals) == 0 {
+			continue
+		}
+		s := 0.0
+		for _, v := range vals {
+			s += v
+			all = append(all, v)
+		}
+		m.NEES = append(m.NEES, s/float64(len(vals)))
+	}
+	if len(all) > 0 && n > 0 {
+		cons, err := metrics.CheckConsistency(sc.NEES, n, NEESConfidence)
+		if err == nil {
+			m.NEESStepsInBand = cons.InsideFraction
+			rs.whole[MetricNEESInBand] = cons.InsideFraction
+		}
+		s := 0.0
+		for _, v := range all {
+			s += v
+		}
+		rs.whole[MetricMeanNEES] = s / float64(len(all))
+	}
+	return rs
+}
+
+// scoreJob scores the tracker's and the reference's frames of j.
+func (s *settings) scoreJob(j *job) {
+	n := j.sc.spec.Model.StateDim
+	j.score = score(j.run, j.res.Frames, j.sc.pos, j.sc.vel, s.cutoff, n)
+	j.refSc = score(j.run, j.ex.Frames, j.sc.pos, j.sc.vel, s.cutoff, n)
+	if j.score.err != nil {
+		j.out.Checks = append(j.out.Checks, result.Check{Name: "metrics", Status: result.Error,
+			Message: fmt.Sprintf("the tracker's metrics could not be computed: %v", j.score.err)})
+		j.score = nil
+	}
+}
+
+// aggregate summarises a scenario's run metrics.
+func (s *settings) aggregate(sc *scen) *result.Metrics {
+	out := &result.Metrics{}
+	var gsum [][]float64
+	var nees [][]float64
+	rmse2, covered := 0.0, 0
+	for _, j := range sc.jobs {
+		if j.score == nil {
+			continue
+		}
+		m := j.score.metrics
+		out.Runs++
+		out.MeanGOSPA += m.MeanGOSPA
+		out.IDSwitches += m.IDSwitches
+		out.FalseTracks += m.FalseTracks
+		rmse2 += m.PositionRMSE * m.PositionRMSE
+		covered++
+		for k, g := range m.GOSPA {
+			for len(gsum) <= k {
+				gsum = append(gsum, nil)
+			}
+			gsum[k] = append(gsum[k], g)
+		}
+		for k, v := range j.score.nees {
+			for len(nees) <= k {
+				nees = append(nees, nil)
+			}
+			nees[k] = append(nees[k], v...)
+		}
+	}
+	if out.Runs == 0 {
+		return nil
+	}
+	out.MeanGOSPA /= float64(out.Runs)
+	out.PositionRMSE = math.Sqrt(rmse2 / float64(covered))
+	for _, gs := range gsum {
+		out.GOSPA = append(out.GOSPA, mean(gs))
+	}
+	cons, err := metrics.CheckConsistency(nees, sc.spec.Model.StateDim, NEESConfidence)
+	if err == nil && cons.Judged > 0 {
+		for _, st := range cons.Steps {
+			if st.Count > 0 {
+				out.NEES = append(out.NEES, st.Mean)
+			}
+		}
+		out.NEESLow, out.NEESHigh = metrics.Interval(sc.spec.Model.StateDim, out.Runs, NEESConfidence)
+		out.NEESConfidence = NEESConfidence
+		out.NEESInBand = cons.InsideFraction
+	}
+	return out
+}
+
+func mean(xs []float64) float64 {
+	if len(xs) == 0 {
+		return 0
+	}
+	s := 0.0
+	for _, x := range xs {
+		s += x
+	}
+	return s / float64(len(xs))
+}
+
+// gates judges the project's gates on a scenario.
+func (s *settings) gates(sc *scen) []result.Gate {
+	var out []result.Gate
+	for _, g := range s.cfg.Gates {
+		key := gateMetrics[g.Metric]
+		var cand, base []float64
+		baseName := "the reference"
+		var blessed, candB []float64
+		for _, j := range sc.jobs {
+			if j.score == nil || j.refSc == nil || j.refSc.err != nil {
+				continue
+			}
+			v, ok := j.score.whole[key]
+			if !ok {
+				continue
+			}
+			cand = append(cand, v)
+			base = append(base, j.refSc.whole[key])
+			if b, ok := j.blessed[key]; ok {
+				blessed = append(blessed, b)
+				candB = append(candB, v)
+			}
+		}
+		if g.Limit != nil {
+			out = append(out, absoluteGate(g, key, cand))
+		}
+		if g.Paired != nil {
+			if len(blessed) >= 2 {
+				// Paired on the runs that have blessed metrics.
+				cand, base = candB, blessed
+				baseName = "the blessed metrics"
+			}
+			out = append(out, pairedGate(g, key, cand, base, baseName))
+		}
+	}
+	return out
+}
+
+func absoluteGate(g config.Gate, key string, vals []float64) result.Gate {
+	name := g.Metric + " limit"
+	if len(vals) == 0 {
+		return result.Gate{Name: name, Status: result.Skip, Message: "no run has a value of " + key}
+	}
+	v := mean(vals)
+	var vd metrics.Verdict
+	if g.LowerIsWorse {
+		vd = metrics.AtLeast(name, v, *g.Limit)
+	} else {
+		vd = metrics.AtMost(name, v, *g.Limit)
+	}
+	return gateOf(vd, fmt.Sprintf("mean %s over %d runs: ", key, len(vals)))
+}
+
+func pairedGate(g config.Gate, key string, cand, base []float64, baseName string) result.Gate {
+	name := g.Metric + " paired"
+	if len(cand) < 2 {
+		return result.Gate{Name: name, Status: result.Skip, Message: "a paired gate needs at least two runs"}
+	}
+	p := metrics.Paired{Confidence: g.Paired.Confidence, MinEffect: g.Paired.MinEffect, HigherIsBetter: g.LowerIsWorse}
+	vd, err := p.Compare(name, cand, base)
+	if err != nil {
+		return result.Gate{Name: name, Status: result.Error, Message: err.Error()}
+	}
+	return gateOf(vd, fmt.Sprintf("%s against %s on the same %d seeds: ", key, baseName, len(cand)))
+}
+
+func gateOf(v metrics.Verdict, prefix string) result.Gate {
+	st := result.Pass
+	if !v.Pass {
+		st = result.Fail
+	}
+	return result.Gate{Name: v.Gate, Status: st, Estimate: v.Estimate, Low: v.Lo, High: v.Hi,
+		Threshold: v.Limit, Message: prefix + v.Reason}
+}

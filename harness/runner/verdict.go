@@ -1,0 +1,458 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"trackgate/harness/compare"
+	"trackgate/harness/mot"
+	"trackgate/harness/result"
+	"trackgate/reference/kalman"
+	"trackgate/reference/tracker"
+)
+
+// builder collects the outcome of one check.
+type builder struct {
+	c     result.Check
+	max   int
+	notes []string
+}
+
+func newBuilder(name string, max int) *builder {
+	return &builder{c: result.Check{Name: name, Status: result.Pass}, max: max}
+}
+
+// fail records a regression; the first one is the check's verdict.
+func (b *builder) fail(d result.Divergence) {
+	if b.c.First == nil {
+		b.c.First = &d
+	}
+	b.c.Status = result.Worst(b.c.Status, result.Fail)
+}
+
+// tie records a changed association the reference could not tell apart.
+func (b *builder) tie(d result.Divergence) {
+	b.c.Ties = append(b.c.Ties, d)
+	b.c.Status = result.Worst(b.c.Status, result.Tie)
+}
+
+// diffs adds value differences, keeping at most b.max.
+func (b *builder) diffs(ds []compare.Diff) {
+	for _, d := range ds {
+		if len(b.c.Diffs) >= b.max {
+			b.c.Truncated++
+			continue
+		}
+		b.c.Diffs = append(b.c.Diffs, diffOf(d))
+	}
+}
+
+func (b *builder) done(summary string) result.Check {
+	var parts []string
+	if summary != "" {
+		parts = append(parts, summary)
+	}
+	parts = append(parts, b.notes...)
+	b.c.Message = strings.Join(parts, "; ")
+	return b.c
+}
+
+// diffOf converts a comparison difference for the result.
+func diffOf(d compare.Diff) result.Diff {
+	out := result.Diff{Path: d.Path, Want: d.Want, Got: d.Got, Excess: d.Excess}
+	switch d.Kind {
+	case compare.Value:
+		out.Tolerance = d.Rule.String()
+	case compare.Association:
+		out.Tolerance = "same detection"
+	default:
+		out.Tolerance = d.Kind.String()
+	}
+	return out
+}
+
+// describe says in one phrase what the worst value difference was.
+func describe(d compare.Diff) string {
+	switch d.Kind {
+	case compare.Value:
+		return fmt.Sprintf("%s: want %g, got %g (|error| %.3g exceeds %s by %.3g)", d.Path, d.Want, d.Got, d.Err, d.Rule, d.Excess)
+	case compare.Shape:
+		return fmt.Sprintf("%s: size %g, want %g", d.Path, d.Got, d.Want)
+	}
+	return d.String()
+}
+
+// view is one step of a tracker's frame seen from the objects the
+// reference tracks at that step.
+type view struct {
+	byObj map[string]int // object → index of its (first) track in the frame
+	extra []string       // tracks that stand for no live object, in frame order
+}
+
+func newView(d *tracker.Detail, f mot.Frame, names map[string]string) view {
+	live := make(map[string]bool, len(d.Objects))
+	for _, od := range d.Objects {
+		live[od.Object] = true
+	}
+	v := view{byObj: map[string]int{}}
+	for i, t := range f.Tracks {
+		o, ok := names[t.Track]
+		if !ok || !live[o] {
+			v.extra = append(v.extra, t.Track)
+			continue
+		}
+		if _, dup := v.byObj[o]; dup {
+			v.extra = append(v.extra, t.Track)
+			continue
+		}
+		v.byObj[o] = i
+	}
+	return v
+}
+
+// isTie reports whether a changed association at a step with this margin
+// is a tie: the margin is at most the ambiguity threshold (so an exact tie
+// is always one). A NaN margin is never a tie.
+func isTie(margin, threshold float64) bool { return margin <= threshold }
+
+// hypothesisProb returns the probability of the most probable listed
+// hypothesis of d that agrees with every association the tracker reported
+// (assoc per row; −2 for a row the tracker said nothing about), or nil
+// when none of the k best does.
+func hypothesisProb(d *tracker.Detail, assoc []int) *float64 {
+	for _, h := range d.Hypotheses {
+		ok := true
+		for row, a := range assoc {
+			if a != -2 && h.Assoc[row] != a {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			p := h.Prob
+			return &p
+		}
+	}
+	return nil
+}
+
+// trackerAssoc lists, per row of d, the detection the tracker's track for
+// that object was updated with, or −2.
+func trackerAssoc(d *tracker.Detail, f mot.Frame, v view, reports bool) []int {
+	out := make([]int, len(d.Objects))
+	for row, od := range d.Objects {
+		out[row] = -2
+		if i, ok := v.byObj[od.Object]; ok && reports && f.Tracks[i].HasDetection {
+			out[row] = f.Tracks[i].Detection
+		}
+	}
+	return out
+}
+
+// assocDivergence describes a changed association at step k.
+func assocDivergence(k int, d *tracker.Detail, f mot.Frame, v view, changed []string, reports bool, what string) result.Divergence {
+	div := result.Divergence{Step: k, Kind: "association", Objects: changed}
+	var parts []string
+	for _, o := range changed {
+		got := f.Tracks[v.byObj[o]].Detection
+		want := mot.NoDetection
+		for _, od := range d.Objects {
+			if od.Object == o {
+				want = od.Detection
+			}
+		}
+		parts = append(parts, fmt.Sprintf("object %s: %s chose %s, the tracker %s", o, what, detName(want), detName(got)))
+	}
+	msg := strings.Join(parts, "; ")
+	if math.IsInf(d.Margin, 1) {
+		msg += "; the reference had a single hypothesis (margin ∞)"
+	} else {
+		m := d.Margin
+		div.Margin = &m
+		msg += fmt.Sprintf("; margin %.4g", m)
+	}
+	if p := hypothesisProb(d, trackerAssoc(d, f, v, reports)); p != nil {
+		div.Probability = p
+		msg += fmt.Sprintf("; the reference gives the tracker's hypothesis probability %.4g", *p)
+	} else {
+		msg += "; the tracker's hypothesis is not among the reference's k best"
+	}
+	div.Message = msg
+	return div
+}
+
+func detName(id int) string {
+	if id == mot.NoDetection {
+		return "no detection"
+	}
+	return fmt.Sprintf("detection %d", id)
+}
+
+// compareEstimate compares a tracker estimate with the expected mean and
+// covariance under p; the path starts "step k / track T".
+func compareEstimate(p compare.Profile, k int, est mot.Estimate, o string, mean []float64, cov mot.Mat) compare.Result {
+	var r compare.Result
+	path := fmt.Sprintf("step %d / track %s (object %s) / ", k, est.Track, o)
+	r.Floats(path+"mean", p.Mean, mean, est.Mean)
+	if est.Cov.Rows > 0 && cov.Rows > 0 {
+		r.Mat(path+"cov", p.Cov, cov, est.Cov)
+	}
+	return r
+}
+
+// estimateDivergence turns the differences of one estimate into a
+// divergence naming the worst of them.
+func estimateDivergence(k int, o string, r compare.Result, what string) result.Divergence {
+	worst := r.Diffs[0]
+	if w := r.Worst(1); len(w) > 0 {
+		worst = w[0]
+	}
+	return result.Divergence{Step: k, Kind: "estimate", Objects: []string{o},
+		Message: fmt.Sprintf("%s: %d value(s) beyond tolerance, worst %s", what, len(r.Diffs), describe(worst))}
+}
+
+// checkReference compares the whole run with the reference's own run.
+func (s *settings) checkReference(j *job) result.Check {
+	b := newBuilder("reference", s.maxDiffs)
+	ready := j.res.Tracker
+	stopped := map[string]int{}
+	var stoppedOrder []string
+	stop := func(o string, k int) {
+		if _, ok := stopped[o]; !ok {
+			stopped[o] = k
+			stoppedOrder = append(stoppedOrder, o)
+		}
+	}
+	j.ties = map[string]int{}
+	for k, f := range j.res.Frames {
+		d := &j.ex.Steps[k]
+		v := newView(d, f, j.names)
+		for _, od := range d.Objects {
+			if _, ok := v.byObj[od.Object]; !ok {
+				b.fail(result.Divergence{Step: k, Kind: "track-count", Objects: []string{od.Object},
+					Message: fmt.Sprintf("object %s is alive but no track of the tracker stands for it", od.Object)})
+			}
+		}
+		for _, t := range v.extra {
+			b.fail(result.Divergence{Step: k, Kind: "track-count",
+				Message: fmt.Sprintf("track %s stands for no live object (or for one another track already stands for)", t)})
+		}
+		if ready.Association {
+			var changed []string
+			for _, od := range d.Objects {
+				i, ok := v.byObj[od.Object]
+				if _, st := stopped[od.Object]; !ok || st || !f.Tracks[i].HasDetection {
+					continue
+				}
+				if f.Tracks[i].Detection != od.Detection {
+					changed = append(changed, od.Object)
+				}
+			}
+			if len(changed) > 0 {
+				div := assocDivergence(k, d, f, v, changed, true, "the reference")
+				if isTie(d.Margin, j.sc.tie) {
+					b.tie(div)
+					for _, o := range changed {
+						if _, ok := j.ties[o]; !ok {
+							j.ties[o] = k
+						}
+					}
+				} else {
+					b.fail(div)
+				}
+				for _, o := range changed {
+					stop(o, k)
+				}
+			}
+		}
+		for _, od := range d.Objects {
+			i, ok := v.byObj[od.Object]
+			if _, st := stopped[od.Object]; !ok || st {
+				continue
+			}
+			r := compareEstimate(j.sc.profile, k, f.Tracks[i], od.Object, od.Mean, od.Cov)
+			if !r.OK() {
+				b.fail(estimateDivergence(k, od.Object, r, "estimate differs from the reference's run"))
+				b.diffs(r.Diffs)
+				stop(od.Object, k)
+			}
+		}
+	}
+	if len(stoppedOrder) > 0 {
+		var parts []string
+		for _, o := range stoppedOrder {
+			parts = append(parts, fmt.Sprintf("%s after step %d", o, stopped[o]))
+		}
+		b.notes = append(b.notes, "not compared after their first tie or divergence: "+strings.Join(parts, ", "))
+	}
+	summary := fmt.Sprintf("%d steps compared with the reference's run", len(j.res.Frames))
+	if !ready.Association {
+		summary += "; the tracker does not report associations, so only estimates and track counts were compared"
+	}
+	return b.done(summary)
+}
+
+// checkConformance restarts the reference from the tracker's own estimates
+// at every step and compares the tracker's next step with it.
+func (s *settings) checkConformance(j *job) result.Check {
+	b := newBuilder("conformance", s.maxDiffs)
+	spec := j.sc.spec
+	model := spec.Model
+	filt, err := kalman.New(model)
+	if err != nil {
+		b.c.Status = result.Error
+		return b.done(fmt.Sprintf("the scenario's model does not suit a Kalman filter: %v", err))
+	}
+	appear := map[string]mot.Object{}
+	for _, o := range spec.Objects {
+		appear[o.ID] = o.Object
+	}
+	n := model.StateDim
+	ready := j.res.Tracker
+	substituted := 0
+	for k, f := range j.res.Frames {
+		d := &j.ex.Steps[k]
+		states := make([]tracker.State, 0, len(d.Objects))
+		var pv view
+		if k > 0 {
+			pv = newView(&j.ex.Steps[k-1], j.res.Frames[k-1], j.names)
+		}
+		for _, od := range d.Objects {
+			obj := appear[od.Object]
+			if obj.Appear == k {
+				states = append(states, tracker.State{ID: od.Object, Mean: obj.Mean, Cov: obj.Cov, Predicted: true})
+				continue
+			}
+			if i, ok := pv.byObj[od.Object]; ok && j.res.Frames[k-1].Tracks[i].Cov.Rows == n {
+				t := j.res.Frames[k-1].Tracks[i]
+				states = append(states, tracker.State{ID: od.Object, Mean: t.Mean, Cov: t.Cov})
+				continue
+			}
+			// No track of the tracker for this object at k−1 (reported by
+			// the reference check): restart it from the reference's own.
+			for _, po := range j.ex.Steps[k-1].Objects {
+				if po.Object == od.Object {
+					states = append(states, tracker.State{ID: od.Object, Mean: po.Mean, Cov: po.Cov})
+					substituted++
+				}
+			}
+		}
+		dd, err := tracker.StepFrom(model, states, j.run.Scans[k], s.K, 0)
+		if err != nil {
+			b.fail(result.Divergence{Step: k, Kind: "estimate",
+				Message: fmt.Sprintf("the reference cannot restart from the tracker's estimates at step %d: %v", k-1, err)})
+			continue
+		}
+		v := newView(&dd, f, j.names)
+		var changed []string
+		for _, od := range dd.Objects {
+			i, ok := v.byObj[od.Object]
+			if !ok {
+				continue
+			}
+			est := f.Tracks[i]
+			mean, cov := od.Mean, od.Cov
+			if ready.Association && est.HasDetection && est.Detection != od.Detection {
+				changed = append(changed, od.Object)
+				mean, cov, err = updateWith(filt, od, est.Detection, j.run.Scans[k])
+				if err != nil {
+					b.fail(result.Divergence{Step: k, Kind: "estimate", Objects: []string{od.Object},
+						Message: fmt.Sprintf("the Kalman update with the tracker's detection failed: %v", err)})
+					continue
+				}
+			}
+			r := compareEstimate(j.sc.profile, k, est, od.Object, mean, cov)
+			if !r.OK() {
+				b.fail(estimateDivergence(k, od.Object, r, "one step from the tracker's own previous estimate, the update differs"))
+				b.diffs(r.Diffs)
+			}
+		}
+		if len(changed) > 0 {
+			div := assocDivergence(k, &dd, f, v, changed, true, "the reference restarted from the tracker's state")
+			if isTie(dd.Margin, j.sc.tie) {
+				b.tie(div)
+			} else {
+				b.fail(div)
+			}
+		}
+	}
+	summary := fmt.Sprintf("%d steps restarted from the tracker's own estimates", len(j.res.Frames))
+	if substituted > 0 {
+		b.notes = append(b.notes, fmt.Sprintf("%d object-steps restarted from the reference's estimate because the tracker had no track for the object at the step before", substituted))
+	}
+	sort.Strings(b.notes)
+	return b.done(summary)
+}
+
+// updateWith returns the Kalman update of od's prediction with detection
+// det of scan (the prediction itself for NoDetection).
+func updateWith(f *kalman.Filter, od tracker.ObjectDetail, det int, scan mot.Scan) ([]float64, mot.Mat, error) {
+	if det == mot.NoDetection {
+		return od.PredMean, od.PredCov, nil
+	}
+	var z []float64
+	for _, d := range scan.Detections {
+		if d.ID == det {
+			z = d.Z
+		}
+	}
+	if z == nil {
+		return nil, mot.Mat{}, fmt.Errorf("detection %d is not in the scan of step %d", det, scan.Step)
+	}
+	n := len(od.PredMean)
+	x := make([]float64, n)
+	p := mot.NewMat(n, n)
+	if _, err := f.Update(x, p.Data, od.PredMean, od.PredCov.Data, z); err != nil {
+		return nil, mot.Mat{}, err
+	}
+	return x, p, nil
+}
+
+// checkIdentity matches tracks to the reference's step by step and
+// reports identity switches. A switch of an object that had a tie at or
+// before that step is a tie; any other is a regression.
+func (s *settings) checkIdentity(j *job, opts compare.Options) result.Check {
+	b := newBuilder("identity", s.maxDiffs)
+	fl, err := compare.Follow(j.ex.Frames[:len(j.res.Frames)], j.res.Frames, opts)
+	if err != nil {
+		b.c.Status = result.Error
+		return b.done(fmt.Sprintf("tracks could not be matched step by step: %v", err))
+	}
+	for _, sw := range fl.Switches {
+		div := result.Divergence{Step: sw.Step, Kind: "identity"}
+		var objs []string
+		if sw.Kind == compare.TrackSwitch {
+			objs = []string{sw.From, sw.To}
+			div.Message = fmt.Sprintf("track %s followed object %s and now follows %s", sw.Subject, sw.From, sw.To)
+		} else {
+			objs = []string{sw.Subject}
+			div.Message = fmt.Sprintf("object %s was followed by track %s and now by track %s", sw.Subject, sw.From, sw.To)
+		}
+		div.Objects = objs
+		tied := false
+		for _, o := range objs {
+			if k, ok := j.ties[o]; ok && k <= sw.Step {
+				tied = true
+			}
+		}
+		if tied {
+			div.Message += " (after a tie the tracker resolved the other way)"
+			b.tie(div)
+		} else {
+			b.fail(div)
+		}
+	}
+	lone := 0
+	for _, l := range fl.Lone {
+		if !l.Reference {
+			lone++
+		}
+	}
+	summary := fmt.Sprintf("%d identity switches", len(fl.Switches))
+	if lone > 0 {
+		summary += fmt.Sprintf("; %d track-steps follow no reference track within %g m", lone, opts.Cutoff)
+	}
+	return b.done(summary)
+}
