@@ -4,16 +4,18 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"trackgate/harness/mot"
 	"trackgate/harness/protocol"
 	"trackgate/reference/tracker"
+	"trackgate/reference/variant"
 )
 
 func init() {
 	register(&command{
 		name:  "reference",
-		usage: "reference [-k N]",
+		usage: "reference [-k N] [-variant NAME]",
 		summary: "Serve the reference tracker over the tracker protocol on standard input and output " +
 			"(the built-in tracker; see harness/PROTOCOL.md).",
 		run: runReference,
@@ -35,6 +37,8 @@ func runReference(args []string, stdout, stderr io.Writer) int {
 	c := commands["reference"]
 	fs := newFlags(c, stderr)
 	k := fs.Int("k", tracker.DefaultK, "the number of association hypotheses ranked per scan")
+	vname := fs.String("variant", "", "serve a deliberately changed reference instead, one of:\n"+strings.Join(variant.Names(), ", ")+
+		"\n(the test bench of the gate itself; see reference/variant)")
 	if code, ok := parseFlags(fs, args); !ok {
 		return code
 	}
@@ -44,13 +48,30 @@ func runReference(args []string, stdout, stderr io.Writer) int {
 	}
 	ready := protocol.Ready{Name: "trackgate-reference", Version: referenceVersion,
 		Covariance: true, Association: true, ManyRuns: true}
-	err := protocol.Serve(referenceInput, stdout, ready, func(s protocol.Start) (protocol.StepFunc, error) {
+	if *vname != "" {
+		v, ok := variant.Lookup(*vname)
+		if !ok {
+			fmt.Fprintf(stderr, "trackgate reference: -variant: unknown variant %q; expected one of %s\n", *vname, strings.Join(variant.Names(), ", "))
+			return exitUsage
+		}
+		ready.Name = "trackgate-reference-" + v.Name
+		return serveReference(stdout, stderr, ready, func(s protocol.Start) (protocol.StepFunc, error) {
+			return protocol.StepFunc(v.New(tracker.Config{Model: s.Model, Objects: s.Objects, K: *k})), nil
+		})
+	}
+	return serveReference(stdout, stderr, ready, func(s protocol.Start) (protocol.StepFunc, error) {
 		t := tracker.New(tracker.Config{Model: s.Model, Objects: s.Objects, K: *k})
 		return func(scan mot.Scan) (mot.Frame, error) {
 			f, _, err := t.Step(scan)
 			return f, err
 		}, nil
 	})
+}
+
+// serveReference serves begin's runs on referenceInput and returns the exit
+// code.
+func serveReference(stdout, stderr io.Writer, ready protocol.Ready, begin func(protocol.Start) (protocol.StepFunc, error)) int {
+	err := protocol.Serve(referenceInput, stdout, ready, begin)
 	if err != nil {
 		fmt.Fprintf(stderr, "trackgate reference: %v\n", err)
 		return exitTracker
