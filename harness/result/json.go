@@ -65,9 +65,82 @@ func Unmarshal(name string, data []byte) (*Suite, error) {
 	}
 	s := new(Suite)
 	if err := decodeValue(reflect.ValueOf(s).Elem(), tree, ""); err != nil {
+		var fe *fieldError
+		if errors.As(err, &fe) {
+			if line, col, ok := locate(data, fe.path); ok {
+				return nil, fmt.Errorf("%s:%d:%d: %w", name, line, col, err)
+			}
+		}
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	return s, nil
+}
+
+// fieldError is a member of the wrong type or value, by its path.
+type fieldError struct {
+	path, msg string
+}
+
+func (e *fieldError) Error() string { return e.path + ": " + e.msg }
+
+func fieldErr(path, format string, args ...any) error {
+	return &fieldError{path: path, msg: fmt.Sprintf(format, args...)}
+}
+
+// locate returns the line and column where the value at path (as decodeValue
+// names it: "scenarios[1].runs[0].seed") starts in data.
+func locate(data []byte, target string) (line, col int, ok bool) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.UseNumber()
+	var found int64 = -1
+	var walk func(path string) bool
+	walk = func(path string) bool {
+		if path == target {
+			found = dec.InputOffset()
+			return true
+		}
+		tok, err := dec.Token()
+		if err != nil {
+			return true // give up; found stays -1
+		}
+		d, isDelim := tok.(json.Delim)
+		if !isDelim {
+			return false
+		}
+		switch d {
+		case '{':
+			for dec.More() {
+				key, err := dec.Token()
+				if err != nil {
+					return true
+				}
+				k, _ := key.(string)
+				if walk(join(path, k)) {
+					return true
+				}
+			}
+		case '[':
+			for i := 0; dec.More(); i++ {
+				if walk(fmt.Sprintf("%s[%d]", path, i)) {
+					return true
+				}
+			}
+		}
+		if _, err := dec.Token(); err != nil { // the closing delimiter
+			return true
+		}
+		return false
+	}
+	walk("")
+	if found < 0 {
+		return 0, 0, false
+	}
+	// InputOffset stops after the previous token: skip the separator.
+	for found < int64(len(data)) && strings.IndexByte(" \t\r\n:,", data[found]) >= 0 {
+		found++
+	}
+	line, col = position(data, found)
+	return line, col, true
 }
 
 // Write writes s to path atomically: the bytes go to a temporary file in the
@@ -401,7 +474,7 @@ func decodeValue(v reflect.Value, x any, path string) error {
 	case reflect.Struct:
 		obj, ok := x.(map[string]any)
 		if !ok {
-			return fmt.Errorf("%s: expected an object, got %s", orTop(path), kindOf(x))
+			return fieldErr(orTop(path), "expected an object, got %s", kindOf(x))
 		}
 		for _, f := range fieldsOf(v.Type()) {
 			m, ok := obj[f.name]
@@ -419,7 +492,7 @@ func decodeValue(v reflect.Value, x any, path string) error {
 		}
 		arr, ok := x.([]any)
 		if !ok {
-			return fmt.Errorf("%s: expected an array, got %s", path, kindOf(x))
+			return fieldErr(path, "expected an array, got %s", kindOf(x))
 		}
 		s := reflect.MakeSlice(v.Type(), len(arr), len(arr))
 		for i, e := range arr {
@@ -431,7 +504,7 @@ func decodeValue(v reflect.Value, x any, path string) error {
 	case reflect.Array:
 		arr, ok := x.([]any)
 		if !ok || len(arr) != v.Len() {
-			return fmt.Errorf("%s: expected an array of %d numbers, got %s", path, v.Len(), describeArray(x))
+			return fieldErr(path, "expected an array of %d numbers, got %s", v.Len(), describeArray(x))
 		}
 		for i, e := range arr {
 			if err := decodeValue(v.Index(i), e, fmt.Sprintf("%s[%d]", path, i)); err != nil {
@@ -441,14 +514,14 @@ func decodeValue(v reflect.Value, x any, path string) error {
 	case reflect.String:
 		s, ok := x.(string)
 		if !ok {
-			return fmt.Errorf("%s: expected a string, got %s", path, kindOf(x))
+			return fieldErr(path, "expected a string, got %s", kindOf(x))
 		}
 		v.SetString(s)
 	case reflect.Int, reflect.Int64, reflect.Int32:
 		n, ok := x.(json.Number)
 		i, err := n.Int64()
 		if !ok || err != nil || v.OverflowInt(i) {
-			return fmt.Errorf("%s: expected an integer, got %s", path, kindOf(x))
+			return fieldErr(path, "expected an integer, got %s", kindOf(x))
 		}
 		v.SetInt(i)
 	case reflect.Uint, reflect.Uint64, reflect.Uint32:
@@ -459,7 +532,7 @@ func decodeValue(v reflect.Value, x any, path string) error {
 			u, err = strconv.ParseUint(n.String(), 10, 64)
 		}
 		if !ok || err != nil || v.OverflowUint(u) {
-			return fmt.Errorf("%s: expected an unsigned integer, got %s", path, kindOf(x))
+			return fieldErr(path, "expected an unsigned integer, got %s", kindOf(x))
 		}
 		v.SetUint(u)
 	case reflect.Float64, reflect.Float32:
@@ -469,7 +542,7 @@ func decodeValue(v reflect.Value, x any, path string) error {
 			var err error
 			f, err = strconv.ParseFloat(x.String(), 64)
 			if err != nil {
-				return fmt.Errorf("%s: number %s out of range", path, x)
+				return fieldErr(path, "number %s out of range", x)
 			}
 		case string:
 			switch x {
@@ -480,20 +553,20 @@ func decodeValue(v reflect.Value, x any, path string) error {
 			case jsonNegInf:
 				f = math.Inf(-1)
 			default:
-				return fmt.Errorf("%s: expected a number or %q, %q, %q, got %s", path, jsonNaN, jsonPosInf, jsonNegInf, kindOf(x))
+				return fieldErr(path, "expected a number or %q, %q, %q, got %s", jsonNaN, jsonPosInf, jsonNegInf, kindOf(x))
 			}
 		default:
-			return fmt.Errorf("%s: expected a number, got %s", path, kindOf(x))
+			return fieldErr(path, "expected a number, got %s", kindOf(x))
 		}
 		v.SetFloat(f)
 	case reflect.Bool:
 		bv, ok := x.(bool)
 		if !ok {
-			return fmt.Errorf("%s: expected true or false, got %s", path, kindOf(x))
+			return fieldErr(path, "expected true or false, got %s", kindOf(x))
 		}
 		v.SetBool(bv)
 	default:
-		return fmt.Errorf("%s: cannot decode into %s", path, v.Type())
+		return fieldErr(path, "cannot decode into %s", v.Type())
 	}
 	return nil
 }

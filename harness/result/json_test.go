@@ -127,7 +127,11 @@ func TestUnmarshalErrors(t *testing.T) {
 		{"float word", `{"version":1,"scenarios":[{"runs":[{"metrics":{"gospa":[1,"nan"]}}]}]}`, `scenarios[0].runs[0].metrics.gospa[1]: expected a number or "NaN", "Infinity", "-Infinity", got string "nan"`},
 		{"ellipse short", `{"version":1,"scenarios":[{"runs":[{"trace":{"truth":[{"points":[{"ellipse":[1,2]}]}]}}]}]}`, "trace.truth[0].points[0].ellipse: expected an array of 3 numbers, got an array of 2"},
 		{"trailing", `{"version":1} {}`, "unexpected data after the result object"},
-		{"name number", `{"version":1,"tool":7}`, "tool: expected a string, got number 7"},
+		{"name number", `{"version":1,"tool":7}`, "f.json:1:21: tool: expected a string, got number 7"},
+		{"line and column", "{\"version\": 1,\n \"scenarios\": [\n  {\"runs\": [{\"seed\": \"x\"}]}\n ]\n}\n",
+			`f.json:3:22: scenarios[0].runs[0].seed: expected an unsigned integer, got string "x"`},
+		{"second element", "{\"version\": 1, \"scenarios\": [{}, {\"position\": [0, 1.5]}]}",
+			"f.json:1:51: scenarios[1].position[1]: expected an integer, got number 1.5"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
