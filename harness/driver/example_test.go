@@ -7,6 +7,9 @@ import (
 	"path/filepath"
 	"testing"
 	"time"
+
+	"trackgate/harness/scenario"
+	"trackgate/harness/sim"
 )
 
 // TestPythonExample drives the example tracker harness/examples/nearest.py
@@ -63,6 +66,19 @@ func TestPythonExample(t *testing.T) {
 		}
 		if got := tr.Cov.At(1, 1); got != 1 {
 			t.Errorf("step 0 velocity variance = %v, want 1", got)
+		}
+	}
+
+	// Two stock scenarios with clutter and misses pass every check.
+	cfg.Batch = false
+	for _, name := range []string{"crossing-harbour-vessels.yaml", "clutter-fishing-grounds.yaml"} {
+		spec, err := scenario.Load(filepath.Join("..", "..", "scenarios", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		res := Run(context.Background(), cfg, JobFor(spec, sim.Run(spec, 0)))
+		if res.Fault != nil || len(res.Frames) != spec.Steps {
+			t.Errorf("%s: %d frames of %d, fault %v", name, len(res.Frames), spec.Steps, res.Fault)
 		}
 	}
 }
