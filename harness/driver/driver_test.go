@@ -279,7 +279,16 @@ func TestRunManyOrder(t *testing.T) {
 	}
 	for _, mode := range []string{"good", "many"} {
 		cfg := fakeConfig(mode)
+		before := len(startedPids())
 		want := RunMany(context.Background(), cfg, jobs, 1)
+		// A tracker that serves several runs is started once per worker.
+		started, wantStarted := len(startedPids())-before, len(jobs)
+		if mode == "many" {
+			wantStarted = 1
+		}
+		if started != wantStarted {
+			t.Errorf("%s: %d processes started for %d jobs on one worker, want %d", mode, started, len(jobs), wantStarted)
+		}
 		for i, r := range want {
 			if r.Fault != nil {
 				t.Fatalf("%s job %d: %v", mode, i, r.Fault)
