@@ -97,7 +97,7 @@ func TestReportBadInput(t *testing.T) {
 		want string
 	}{
 		{"missing file", []string{"report", filepath.Join(dir, "none.json")}, "none.json"},
-		{"wrong type", []string{"report", bad}, "bad.json: scenarios[0].runs[0].seed: expected an unsigned integer"},
+		{"wrong type", []string{"report", bad}, "bad.json:3:22: scenarios[0].runs[0].seed: expected an unsigned integer"},
 		{"newer version", []string{"report", newer}, "written by result version 9"},
 		{"unknown format", []string{"report", good, "-format", "pdf"}, `-format: expected one of terminal, json, junit, markdown, html; got "pdf"`},
 		{"two files", []string{"report", good, good}, "expected one result file, got 2"},
