@@ -129,7 +129,9 @@ func Run(ctx context.Context, cfg Config, job Job) Result {
 // RunMany feeds every job to the tracker, with up to workers runs at the
 // same time (workers < 1 means 1), and returns the results in job order.
 // Each worker keeps a tracker that serves several runs for its next job;
-// the results do not depend on the number of workers.
+// the results do not depend on the number of workers. Such a tracker's
+// exit status after the worker's last run is not reported (no run is
+// going on then).
 func RunMany(ctx context.Context, cfg Config, jobs []Job, workers int) []Result {
 	results := make([]Result, len(jobs))
 	workers = max(1, min(workers, len(jobs)))
