@@ -352,14 +352,16 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 	drawPaths(tr.Truth, "truth", "truth")
 	drawPaths(tr.Tracker, "trk", "tracker track")
 	drawPaths(tr.Reference, "ref", "reference track")
+	var labels []label
 	for _, p := range tr.Truth {
 		if n := len(p.Points); n > 0 {
 			pt := p.Points[n-1]
 			if finite(pt.X, pt.Y) {
-				s.add(`<text class="label" x="%s" y="%s">%s</text>`, f1(f.px(pt.X)+5), f1(f.py(pt.Y)-5), esc(p.ID))
+				labels = append(labels, label{f.px(pt.X) + 5, f.py(pt.Y) - 5, p.ID})
 			}
 		}
 	}
+	s.labels(labels)
 	ringed := false
 	if m.first >= 0 {
 		for _, p := range involved(tr.Tracker, m.objects) {
@@ -444,12 +446,14 @@ func timePlot(tr *result.Trace, m marks) template.HTML {
 	lines(tr.Truth, "truth", "truth")
 	lines(tr.Tracker, "trk", "tracker track")
 	lines(tr.Reference, "ref", "reference track")
+	var labels []label
 	for _, p := range tr.Truth {
 		if n := len(p.Points); n > 0 && finite(p.Points[n-1].X) {
 			pt := p.Points[n-1]
-			s.add(`<text class="label" x="%s" y="%s">%s</text>`, f1(f.px(float64(pt.Step))+5), f1(f.py(pt.X)+4), esc(p.ID))
+			labels = append(labels, label{f.px(float64(pt.Step)) + 5, f.py(pt.X) + 4, p.ID})
 		}
 	}
+	s.labels(labels)
 	stepMarks(s, f, m)
 	items := []legendItem{{"truth", "truth", "line"}, {"det", "detections", "dot"}, {"ref", "reference ±2σ", "line"}, {"trk", "tracker ±2σ", "line"}}
 	s.legend(plotW-padR+14, padT+10, items)

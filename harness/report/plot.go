@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"html/template"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 )
@@ -225,4 +226,26 @@ func (s *svg) polyline(class, title string, xs, ys []float64) {
 		pts.WriteString(f1(xs[i]) + "," + f1(ys[i]))
 	}
 	s.add(`<polyline class="%s" points="%s"><title>%s</title></polyline>`, class, pts.String(), esc(title))
+}
+
+// label is a text placed at a pixel position.
+type label struct {
+	x, y float64
+	text string
+}
+
+// labels draws the labels, moving them apart vertically where two would
+// overlap (closer than 12 px in height and 70 px in width).
+func (s *svg) labels(ls []label) {
+	sort.SliceStable(ls, func(i, j int) bool { return ls[i].y < ls[j].y })
+	for i := range ls {
+		for j := 0; j < i; j++ {
+			if math.Abs(ls[i].x-ls[j].x) < 70 && ls[i].y-ls[j].y < 12 {
+				ls[i].y = ls[j].y + 12
+			}
+		}
+	}
+	for _, l := range ls {
+		s.add(`<text class="label" x="%s" y="%s">%s</text>`, f1(l.x), f1(l.y), esc(l.text))
+	}
 }

@@ -2,6 +2,8 @@ package report
 
 import (
 	"math"
+	"regexp"
+	"strconv"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -97,5 +99,23 @@ func TestEqualAspect(t *testing.T) {
 	}
 	if f.x0 > -40 || f.x1 < 460 || f.y0 > -210 || f.y1 < 230 {
 		t.Errorf("frame [%v,%v]×[%v,%v] does not cover the data", f.x0, f.x1, f.y0, f.y1)
+	}
+}
+
+func TestLabelsApart(t *testing.T) {
+	var s svg
+	s.labels([]label{{100, 50, "lorry-2"}, {102, 47, "lorry-3"}, {104, 52, "lorry-1"}, {400, 50, "far"}})
+	ys := map[string]float64{}
+	for _, m := range regexp.MustCompile(`y="([0-9.]+)">([a-z0-9-]+)<`).FindAllStringSubmatch(s.b.String(), -1) {
+		ys[m[2]], _ = strconv.ParseFloat(m[1], 64)
+	}
+	near := []string{"lorry-3", "lorry-2", "lorry-1"}
+	for i := 1; i < len(near); i++ {
+		if d := ys[near[i]] - ys[near[i-1]]; d < 12 {
+			t.Errorf("%s and %s only %v px apart", near[i-1], near[i], d)
+		}
+	}
+	if ys["far"] != 50 {
+		t.Errorf("a label with room moved to y=%v", ys["far"])
 	}
 }

@@ -216,7 +216,7 @@ func convoy() result.Scenario {
 	sc := result.Scenario{
 		Name:        "convoy_quarry_lorries",
 		File:        "scenarios/convoy_quarry_lorries.yaml",
-		Description: "Three loaded lorries leave the quarry gate nose to tail along the haul road (along-road position only).",
+		Description: "Three lorries leave the quarry gate nose to tail along the haul road; the empty third one closes up and passes the second at the weighbridge lay-by (along-road position only).",
 		Hash:        "c0ffee11d2a3b4c5d6e7f8091a2b3c4d5e6f708192a3b4c5d6e7f8091a2b3c4d",
 		StateDim:    2, MeasDim: 1, Position: []int{0},
 		Status: result.Tie, RunsPlanned: runs,
