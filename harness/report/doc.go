@@ -24,7 +24,9 @@
 // <failure type="regression|tie-breaking">, a fault <error type="fault:...">,
 // a skip <skipped>. Properties carry the seed, platform, tracker and shard.
 // Counts are recomputed from the cases. Characters that XML 1.0 forbids are
-// replaced by U+FFFD.
+// replaced by U+FFFD, and a tracker's stderr is cut to its last 200 lines
+// (64 KiB). No timestamp or host name is written, so the same result always
+// gives the same file; time attributes come from Run.Seconds.
 //
 // # Markdown
 //
