@@ -40,7 +40,9 @@
 //	                        spec.completions, which the pod must be told
 //
 // Parse takes the base as an argument; FromEnv knows the base of each
-// system by name (see Systems).
+// system by name (see Systems). A command that takes "-shard K/N" should
+// give its base flag no default and refuse a shard without one, so that the
+// base is always stated where the shard is.
 //
 // References:
 //   - G. Fowler, L. C. Noll, K.-P. Vo, D. Eastlake, "The FNV Non-Cryptographic
