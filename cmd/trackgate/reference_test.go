@@ -18,16 +18,16 @@ import (
 	"trackgate/reference/tracker"
 )
 
-// referenceHelperEnv makes the test binary act as 'trackgate reference'
-// when it re-runs itself (see TestReferenceHelper).
-const referenceHelperEnv = "TRACKGATE_REFERENCE_HELPER"
+// referenceChildEnv makes the test binary act as 'trackgate reference'
+// when it re-runs itself (see TestReferenceChild).
+const referenceChildEnv = "TRACKGATE_REFERENCE_CHILD"
 
-// TestReferenceHelper is not a test: run by TestReferenceThroughDriver as
+// TestReferenceChild is not a test: run by TestReferenceThroughDriver as
 // a subprocess, it serves the reference tracker on its standard input and
 // output and exits.
-func TestReferenceHelper(t *testing.T) {
-	if os.Getenv(referenceHelperEnv) == "" {
-		t.Skip("helper process for TestReferenceThroughDriver")
+func TestReferenceChild(t *testing.T) {
+	if os.Getenv(referenceChildEnv) == "" {
+		t.Skip("child process of TestReferenceThroughDriver")
 	}
 	os.Exit(run([]string{"reference"}, os.Stdout, os.Stderr))
 }
@@ -40,8 +40,8 @@ func TestReferenceThroughDriver(t *testing.T) {
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no stock scenarios in ../../scenarios (%v)", err)
 	}
-	cfg := driver.Config{Argv: []string{os.Args[0], "-test.run=^TestReferenceHelper$"},
-		Env: []string{referenceHelperEnv + "=1", "GORACE=atexit_sleep_ms=0"}, ReplyTimeout: 30 * time.Second}
+	cfg := driver.Config{Argv: []string{os.Args[0], "-test.run=^TestReferenceChild$"},
+		Env: []string{referenceChildEnv + "=1", "GORACE=atexit_sleep_ms=0"}, ReplyTimeout: 30 * time.Second}
 	for _, file := range files {
 		t.Run(filepath.Base(file), func(t *testing.T) {
 			spec, err := scenario.Load(file)

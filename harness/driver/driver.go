@@ -141,7 +141,7 @@ func RunMany(ctx context.Context, cfg Config, jobs []Job, workers int) []Result 
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			var s *session
+			var s *peer
 			for {
 				i := int(next.Add(1) - 1)
 				if i >= len(jobs) {
@@ -166,8 +166,8 @@ func RunMany(ctx context.Context, cfg Config, jobs []Job, workers int) []Result 
 // read and checked in a conversation.
 var onReply func()
 
-// session is a tracker process in conversation.
-type session struct {
+// peer is a tracker process in conversation.
+type peer struct {
 	p      *proc
 	in     *os.File // our end of its standard input
 	out    *os.File // our end of its standard output
@@ -178,7 +178,7 @@ type session struct {
 	halted bool
 }
 
-func startSession(cfg *Config) (*session, error) {
+func startPeer(cfg *Config) (*peer, error) {
 	inR, inW, err := os.Pipe()
 	if err != nil {
 		return nil, err
@@ -197,21 +197,21 @@ func startSession(cfg *Config) (*session, error) {
 		outR.Close()
 		return nil, err
 	}
-	return &session{p: p, in: inW, out: outR, enc: protocol.NewEncoder(inW),
+	return &peer{p: p, in: inW, out: outR, enc: protocol.NewEncoder(inW),
 		dec: protocol.NewDecoder(outR, "tracker stdout", cfg.MaxLine)}, nil
 }
 
-// close ends a healthy session: input closed, a grace period to exit, then
+// close ends a healthy conversation: input closed, a grace period to exit, then
 // the group is ended.
-func (s *session) close() *Fault {
+func (s *peer) close() *Fault {
 	s.in.Close()
 	s.p.end(true)
 	s.out.Close()
 	return s.p.exitFault(0)
 }
 
-// kill ends a faulty session at once.
-func (s *session) kill() {
+// kill ends a faulty conversation at once.
+func (s *peer) kill() {
 	s.in.Close()
 	s.p.end(false)
 	s.out.Close()
@@ -219,7 +219,7 @@ func (s *session) kill() {
 
 // deadline sets the read and write deadline for the next exchange unless
 // the run has been halted.
-func (s *session) deadline(t time.Time) {
+func (s *peer) deadline(t time.Time) {
 	s.mu.Lock()
 	if !s.halted {
 		s.out.SetReadDeadline(t)
@@ -228,7 +228,7 @@ func (s *session) deadline(t time.Time) {
 	s.mu.Unlock()
 }
 
-func (s *session) halt() {
+func (s *peer) halt() {
 	s.mu.Lock()
 	s.halted = true
 	past := time.Unix(1, 0)
@@ -345,9 +345,9 @@ func (x *exchange) reply(dec *protocol.Decoder, i int) (*Fault, error) {
 func itoa(n int) string { return strconv.Itoa(n) }
 
 // runConversation runs one job in conversation, reusing s when it is a
-// tracker that serves several runs. It returns the session to keep (nil
+// tracker that serves several runs. It returns the tracker process to keep (nil
 // when it was ended).
-func runConversation(ctx context.Context, cfg *Config, s *session, job *Job) (Result, *session) {
+func runConversation(ctx context.Context, cfg *Config, s *peer, job *Job) (Result, *peer) {
 	x := &exchange{job: job}
 	x.res.Frames = make([]mot.Frame, 0, len(job.Run.Scans))
 	x.res.Tape = make([]Entry, 0, 2*len(job.Run.Scans)+3)
@@ -361,7 +361,7 @@ func runConversation(ctx context.Context, cfg *Config, s *session, job *Job) (Re
 	fresh := s == nil
 	if fresh {
 		var err error
-		if s, err = startSession(cfg); err != nil {
+		if s, err = startPeer(cfg); err != nil {
 			x.res.Fault = &Fault{Class: Launch, Step: -1, Detail: err.Error()}
 			return x.res, nil
 		}
@@ -385,7 +385,7 @@ func runConversation(ctx context.Context, cfg *Config, s *session, job *Job) (Re
 	}
 
 	// fail finishes the run with fault f, ending the process.
-	fail := func(f *Fault) (Result, *session) {
+	fail := func(f *Fault) (Result, *peer) {
 		stopHalt()
 		s.kill()
 		if ef := s.p.exitFault(f.Step); ef != nil && (f.Class == MissingReply || f.Class == Hang) {

@@ -132,7 +132,7 @@ func TestFaults(t *testing.T) {
 		{mode: "signal-mid", class: Crashed, step: 1, detail: "killed"},
 		{mode: "hang", class: Hang, step: 1, detail: "no reply within", stderr: "thinking hard"},
 		{mode: "ignore-term", class: Hang, step: 1, detail: "no reply within"},
-		{mode: "grandchild", class: Hang, step: 1, stderr: "stubborn helper running"},
+		{mode: "grandchild", class: Hang, step: 1, stderr: "stubborn grandchild running"},
 		{mode: "slow", class: Hang, detail: "run timeout", cfg: func(c *Config) { c.RunTimeout = 250 * time.Millisecond; c.ReplyTimeout = 5 * time.Second }},
 		{mode: "garbage", class: BadJSON, step: 1, line: 3},
 		{mode: "long", class: LineTooLong, step: 1, line: 3},

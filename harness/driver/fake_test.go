@@ -49,7 +49,7 @@ func echoFrame(m mot.Model, s mot.Scan) mot.Frame {
 func fakeTracker(mode string, args []string) {
 	if mode == "stubborn" {
 		signal.Ignore(syscall.SIGTERM)
-		fmt.Fprintln(os.Stderr, "stubborn helper running")
+		fmt.Fprintln(os.Stderr, "stubborn grandchild running")
 		time.Sleep(time.Hour)
 		return
 	}
