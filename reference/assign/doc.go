@@ -40,7 +40,7 @@
 // published assumes a square matrix). Both leave the reduced costs
 // non-negative and the assigned pairs tight, so only the rows left free need
 // a search. On uniform random costs this cut the instructions of a 1000×1000
-// solve about fivefold (see BENCHMARKS.md). JV's reduction transfer step made
+// solve by about 1.8× (see BENCHMARKS.md). JV's reduction transfer step made
 // the same problems slower here and is not used. With [Workspace.NoInit] the
 // solver follows Crouse's pseudocode exactly, except that instead of shifting
 // the matrix by its minimum m the row duals start at u_i = m, which has the

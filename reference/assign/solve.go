@@ -288,23 +288,7 @@ func (w *Workspace) augment(c []float64, nc, cur int) bool {
 	sink := -1
 	for sink < 0 {
 		visited = append(visited, i)
-		row := c[i*nc:][:nc]
-		base := minVal - u[i]
-		lowest := inf
-		index := -1
-		for it, j := range rem[:num] {
-			r := base + row[j] - v[j]
-			s := spc[j]
-			if r < s {
-				path[j] = i
-				spc[j] = r
-				s = r
-			}
-			if s < lowest || (s == lowest && row4col[j] < 0) {
-				lowest = s
-				index = it
-			}
-		}
+		lowest, index := scanRow(c[i*nc:][:nc], v, spc, path, row4col, rem[:num], minVal-u[i], i)
 		if index < 0 || lowest == inf {
 			w.rows = visited
 			return false
@@ -404,4 +388,31 @@ func (w *Workspace) reduceRows(c []float64, nr, nc int) {
 			row4col[arg] = i
 		}
 	}
+}
+
+// scanRow relaxes the unsettled columns rem through row i, whose entries
+// are row, at path cost base + row[j] − v[j], and returns the smallest path
+// cost among them and its position in rem (−1 when rem is empty). On ties it
+// prefers a free column, which Crouse (2016) and scipy's implementation note
+// matters for small integer costs. It is kept apart from augment so that the
+// loop's few values stay in registers.
+func scanRow(row, v, spc []float64, path, row4col, rem []int, base float64, i int) (float64, int) {
+	n := len(row)
+	v, spc, path, row4col = v[:n], spc[:n], path[:n], row4col[:n]
+	lowest := math.Inf(1)
+	index := -1
+	for it, j := range rem {
+		r := base + row[j] - v[j]
+		s := spc[j]
+		if r < s {
+			path[j] = i
+			spc[j] = r
+			s = r
+		}
+		if s < lowest || (s == lowest && row4col[j] < 0) {
+			lowest = s
+			index = it
+		}
+	}
+	return lowest, index
 }
