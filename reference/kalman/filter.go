@@ -279,16 +279,21 @@ func mulVec(dst, a, x []float64, r, c int) {
 	}
 }
 
-// mul: dst (r×c) = A (r×k) B (k×c). dst must not alias A or B.
+// mul: dst (r×c) = A (r×k) B (k×c). dst must not alias A or B. Each entry
+// is summed over l in increasing order from zero; terms whose A factor is
+// zero are skipped (model matrices such as F and H are mostly zeros).
 func mul(dst, a, b []float64, r, k, c int) {
 	for i := 0; i < r; i++ {
 		ai, di := a[i*k:(i+1)*k], dst[i*c:(i+1)*c]
-		for j := range di {
-			var s float64
-			for l, v := range ai {
-				s += float64(v * b[l*c+j])
+		clear(di)
+		for l, v := range ai {
+			if v == 0 {
+				continue
 			}
-			di[j] = s
+			bl := b[l*c : (l+1)*c][:len(di)]
+			for j, w := range bl {
+				di[j] += float64(v * w)
+			}
 		}
 	}
 }
