@@ -17,7 +17,7 @@ import (
 //   - outside quotes a backslash makes the next character literal, and a
 //     backslash before a newline joins the lines;
 //   - quotes glue to their neighbours: a'b c'"d" is the one word "ab cd",
-//     and '' is an empty word.
+//     and ” is an empty word.
 //
 // Variables ($HOME), globs (*.yaml), redirections and pipes are not
 // interpreted: they are ordinary characters. An unterminated quote or a

@@ -55,6 +55,9 @@ type job struct {
 	// blessed holds the tracker's blessed whole-run metrics, when read.
 	blessed map[string]float64
 	ties    map[string]int // object → first step of a tie (reference check)
+	// partedFromGolden reports that the tracker's output stopped being
+	// compared with its golden after a changed association.
+	partedFromGolden bool
 	secs    float64
 }
 
@@ -204,12 +207,12 @@ func (s *settings) judge(j *job) {
 	}
 	n := len(j.res.Frames)
 	opts := compare.Options{Position: j.sc.pos, Cutoff: s.cutoff}
-	al, err := compare.Align(j.ex.Frames[:n], j.res.Frames, opts)
+	names, err := alignRun(j.ex.Frames, j.res.Frames, j.ex.Steps, j.sc.tie, opts)
 	if err != nil {
 		r.Checks = append(r.Checks, result.Check{Name: "alignment", Status: result.Error,
 			Message: fmt.Sprintf("the tracker's tracks could not be paired with the reference's: %v", err)})
 	} else {
-		j.names = al.Names
+		j.names = names
 		if s.against != AgainstGolden {
 			r.Checks = append(r.Checks, s.checkReference(j))
 			if j.res.Tracker.Covariance {

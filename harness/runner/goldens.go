@@ -177,6 +177,10 @@ func (s *settings) judgeArtefact(j *job, a *artefact) {
 			}
 		}
 		r := compare.Metrics(j.sc.profile, want, metricMap(a.file.Metrics))
+		if a.id.Tracker != "" && j.partedFromGolden && !r.OK() {
+			a.detail = "the tracker's metrics were not compared with the golden: the run parts from it after a changed association"
+			return
+		}
 		if !r.OK() {
 			a.status = golden.Failing
 			a.detail = fmt.Sprintf("%s differ from the golden %s: %d difference(s), first %s", a.what, a.path, len(r.Diffs), describe(r.Diffs[0]))
@@ -191,28 +195,21 @@ func (s *settings) judgeArtefact(j *job, a *artefact) {
 func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 	b := a.check
 	got := j.res.Frames
-	al, err := compare.Align(f.Frames, got, compare.Options{Position: j.sc.pos, Cutoff: s.cutoff})
+	names, err := alignRun(f.Frames, got, j.ex.Steps, j.sc.tie, compare.Options{Position: j.sc.pos, Cutoff: s.cutoff})
 	if err != nil {
 		a.status = golden.Failing
 		a.detail = fmt.Sprintf("the tracker's tracks could not be paired with the golden %s: %v", a.path, err)
 		return
 	}
 	// Associations, step by step, judged with the reference's margin.
+	// After a changed association (tie or not) a track is no longer
+	// compared: the two runs legitimately part there, or the first
+	// divergence has been reported.
 	want := map[int]mot.Frame{}
 	for _, fr := range f.Frames {
 		want[fr.Step] = fr
 	}
-	strip := func(frames []mot.Frame) []mot.Frame {
-		out := make([]mot.Frame, len(frames))
-		for i, fr := range frames {
-			out[i] = mot.Frame{Step: fr.Step, Tracks: make([]mot.Estimate, len(fr.Tracks))}
-			for t, e := range fr.Tracks {
-				e.HasDetection = false
-				out[i].Tracks[t] = e
-			}
-		}
-		return out
-	}
+	stopped := map[string]int{} // blessed track name → step
 	for k, fr := range got {
 		wf, ok := want[fr.Step]
 		if !ok {
@@ -225,8 +222,8 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 		var changed []string
 		var msgs []string
 		for _, t := range fr.Tracks {
-			w, ok := byName[al.Names[t.Track]]
-			if !ok || !w.HasDetection || !t.HasDetection || w.Detection == t.Detection {
+			w, ok := byName[names[t.Track]]
+			if _, st := stopped[w.Track]; !ok || st || !w.HasDetection || !t.HasDetection || w.Detection == t.Detection {
 				continue
 			}
 			changed = append(changed, w.Track)
@@ -234,6 +231,9 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 		}
 		if len(changed) == 0 {
 			continue
+		}
+		for _, c := range changed {
+			stopped[c] = fr.Step
 		}
 		div := result.Divergence{Step: fr.Step, Kind: "association", Objects: changed, Message: strings.Join(msgs, "; ")}
 		if k < len(j.ex.Steps) {
@@ -249,7 +249,23 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 		}
 		b.fail(div)
 	}
-	r := compare.Frames(j.sc.profile, strip(f.Frames), strip(got), al.Names)
+	// Values, leaving out tracks from the step they stopped being compared.
+	filter := func(frames []mot.Frame, blessedName func(string) string) []mot.Frame {
+		out := make([]mot.Frame, len(frames))
+		for i, fr := range frames {
+			out[i] = mot.Frame{Step: fr.Step}
+			for _, e := range fr.Tracks {
+				if k, st := stopped[blessedName(e.Track)]; st && fr.Step >= k {
+					continue
+				}
+				e.HasDetection = false
+				out[i].Tracks = append(out[i].Tracks, e)
+			}
+		}
+		return out
+	}
+	r := compare.Frames(j.sc.profile, filter(f.Frames, func(n string) string { return n }),
+		filter(got, func(n string) string { return names[n] }), names)
 	for _, d := range r.Diffs {
 		var step int
 		fmt.Sscanf(d.Path, "step %d", &step)
@@ -258,6 +274,10 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 			kind = "track-count"
 		}
 		b.fail(result.Divergence{Step: step, Kind: kind, Message: "against the blessed output: " + describe(d)})
+	}
+	if len(stopped) > 0 {
+		j.partedFromGolden = true
+		b.notes = append(b.notes, fmt.Sprintf("%d track(s) not compared with the golden after a changed association", len(stopped)))
 	}
 	b.diffs(r.Diffs)
 	if b.c.Status == result.Fail {
@@ -324,7 +344,7 @@ func (s *settings) checkGolden(j *job) []result.Check {
 	}
 	ci := s.ci()
 	out := newBuilder("golden", s.maxDiffs)
-	var msgs []string
+	var msgs, missing []string
 	for _, a := range arts {
 		s.judgeArtefact(j, a)
 		if a.id.Kind == golden.Output && j.res.Fault != nil && a.status == golden.Missing {
@@ -333,12 +353,11 @@ func (s *settings) checkGolden(j *job) []result.Check {
 		switch a.status {
 		case golden.Passing:
 		case golden.Missing:
+			missing = append(missing, a.what)
 			if ci {
 				out.c.Status = result.Worst(out.c.Status, result.Fail)
-				msgs = append(msgs, a.detail+" (CI mode: a missing golden fails)")
 			} else {
 				out.c.Status = result.Worst(out.c.Status, result.Skip)
-				msgs = append(msgs, a.detail+"; run trackgate bless to create it")
 			}
 		case golden.Outdated:
 			out.c.Status = result.Error
@@ -354,6 +373,7 @@ func (s *settings) checkGolden(j *job) []result.Check {
 				}
 			}
 		}
+		msgs = append(msgs, a.check.notes...)
 		c := a.check.c
 		if c.First != nil && out.c.First == nil {
 			out.c.First = c.First
@@ -370,6 +390,15 @@ func (s *settings) checkGolden(j *job) []result.Check {
 			}
 		}
 		out.c.Truncated += c.Truncated
+	}
+	if len(missing) > 0 {
+		m := fmt.Sprintf("no golden %s for run %d under %s", strings.Join(missing, ", "), j.index, s.goldenRoot)
+		if ci {
+			m += " (CI mode: a missing golden fails)"
+		} else {
+			m += "; run trackgate bless to create them"
+		}
+		msgs = append([]string{m}, msgs...)
 	}
 	if len(msgs) == 0 {
 		msgs = append(msgs, fmt.Sprintf("%d golden files agree", len(arts)))
