@@ -58,7 +58,7 @@ type job struct {
 	// partedFromGolden reports that the tracker's output stopped being
 	// compared with its golden after a changed association.
 	partedFromGolden bool
-	secs    float64
+	secs             float64
 }
 
 // Check runs the regression gate described by o and returns its result.

@@ -18,7 +18,12 @@
 //
 // Track names are first paired over the whole run (compare.Align), so that a
 // tracker may call its tracks anything and list tracks or detections in any
-// order. Then, for each run:
+// order. The pairing is anchored before the first ambiguous step (the
+// first whose reference margin is within the ambiguity threshold): tracks
+// present before it are paired on the steps before it only, the others
+// over the whole run among themselves (see alignRun), because after a tie
+// resolved the other way a track may rightly follow the path the other
+// object took in the reference's run. Then, for each run:
 //
 //   - reference: step by step, every paired track's association is compared
 //     with the reference's. Let m be the reference's margin at the step,
@@ -57,8 +62,10 @@
 // the run an error; a tape or reference golden that differs from what the
 // simulator and the reference produce now is an error naming them (the
 // harness changed, not the tracker); the tracker's frames are compared with
-// its blessed frames after alignment, under the same profile and tie rule,
-// and its metrics under the profile's metric rule. A failing comparison
+// its blessed frames after alignment, under the same profile and tie rule
+// (the reference's margin at the step; a track is not compared after its
+// association changed), and its metrics under the profile's metric rule
+// (not when the run parted from the golden after a changed association). A failing comparison
 // leaves the actual output beside the golden as <golden>.actual (or under
 // Options.Out; in CI mode only there). A missing golden is skipped, or a
 // failure in CI mode.
