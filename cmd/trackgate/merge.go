@@ -84,7 +84,7 @@ func runMerge(args []string, stdout, stderr io.Writer) int {
 func verifySplit(file string, s *result.Suite) error {
 	spec := shard.All
 	if s.Shard != nil {
-		spec = shard.Spec{Index: s.Shard.Index, Total: s.Shard.Total}
+		spec = shard.Spec{Index: s.Shard.Index, Total: s.Shard.Total, Scenarios: s.Shard.Scenarios}
 	}
 	if !spec.Valid() {
 		return fmt.Errorf("%s: shard %d/%d is not valid", file, spec.Index, spec.Total)
@@ -94,7 +94,11 @@ func verifySplit(file string, s *result.Suite) error {
 			if r.Index < 0 {
 				return fmt.Errorf("%s: scenario %q: negative run index %d", file, sc.Name, r.Index)
 			}
-			if want := shard.Of(sc.Name, r.Index, spec.Total); want != spec.Index {
+			if !spec.Holds(sc.Name, r.Index) {
+				want := shard.Of(sc.Name, r.Index, spec.Total)
+				if spec.Scenarios {
+					want = shard.Of(sc.Name, 0, spec.Total)
+				}
 				return fmt.Errorf("%s: scenario %q run %d belongs to shard %d, the file is shard %d (0-based, of %d)", file, sc.Name, r.Index, want, spec.Index, spec.Total)
 			}
 		}

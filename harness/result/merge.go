@@ -81,6 +81,10 @@ func Merge(suites ...*Suite) (*Suite, error) {
 			errs = append(errs, fmt.Sprintf("%s: shard total %d, the first result says %d", who, sh.Total, total))
 			continue
 		}
+		if sh.Scenarios != shardOf(first).Scenarios {
+			errs = append(errs, fmt.Sprintf("%s: deals whole scenarios %v, the first result %v; all shards must be split the same way", who, sh.Scenarios, shardOf(first).Scenarios))
+			continue
+		}
 		if sh.Index < 0 || sh.Index >= total {
 			errs = append(errs, fmt.Sprintf("%s: shard index %d outside 0..%d", who, sh.Index, total-1))
 			continue

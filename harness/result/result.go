@@ -99,6 +99,9 @@ type Shard struct {
 	// Index is 0-based; Total is the number of shards.
 	Index int `json:"index"`
 	Total int `json:"total"`
+	// Scenarios is set when whole scenarios were dealt to shards rather
+	// than single runs (see package trackgate/harness/shard).
+	Scenarios bool `json:"scenarios,omitempty"`
 }
 
 // Scenario is the result of all runs of one scenario.

@@ -25,6 +25,17 @@
 // test runner shards test files by an FNV hash of their names too (common
 // practice).
 //
+// # Whole scenarios
+//
+// A scenario's statistical gates and summary metrics need all of its runs,
+// so a shard that holds only some of them cannot judge them, and merging
+// shard results cannot either (the gates' per-run inputs are not in the
+// result). "K/N:scenarios" (Spec.Scenarios) deals whole scenarios instead:
+// every run goes to the shard of the scenario's run 0, h(n) mod N. Each
+// shard then judges its scenarios' gates and the merge keeps them; the price
+// is balance, since a shard's load is the sum of whole scenarios. Adding a
+// scenario still moves no other.
+//
 // # Numbering
 //
 // Shard indices inside trackgate are 0-based (result.Shard). On the command

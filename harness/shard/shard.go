@@ -12,26 +12,41 @@ import (
 // Spec is one shard: Index in 0..Total-1.
 type Spec struct {
 	Index, Total int
+	// Scenarios deals whole scenarios instead of single runs: every run of
+	// a scenario goes to the shard of its run 0. Shards are then less even,
+	// but each holds all runs of its scenarios, so it can judge the
+	// scenarios' statistical gates itself. Written "K/N:scenarios".
+	Scenarios bool
 }
 
 // All is the spec of an unsharded run.
 var All = Spec{Index: 0, Total: 1}
 
 // String writes the spec 0-based, as "0/4".
-func (s Spec) String() string { return fmt.Sprintf("%d/%d (0-based)", s.Index, s.Total) }
+func (s Spec) String() string {
+	if s.Scenarios {
+		return fmt.Sprintf("%d/%d:scenarios (0-based)", s.Index, s.Total)
+	}
+	return fmt.Sprintf("%d/%d (0-based)", s.Index, s.Total)
+}
 
 // Valid reports whether 0 ≤ Index < Total.
 func (s Spec) Valid() bool { return s.Total >= 1 && s.Index >= 0 && s.Index < s.Total }
 
 // Holds reports whether run of scenario name belongs to this shard.
-func (s Spec) Holds(name string, run int) bool { return Of(name, run, s.Total) == s.Index }
+func (s Spec) Holds(name string, run int) bool {
+	if s.Scenarios {
+		run = 0
+	}
+	return Of(name, run, s.Total) == s.Index
+}
 
 // Result returns the result.Shard for the spec, nil for an unsharded run.
 func (s Spec) Result() *result.Shard {
 	if s.Total <= 1 {
 		return nil
 	}
-	return &result.Shard{Index: s.Index, Total: s.Total}
+	return &result.Shard{Index: s.Index, Total: s.Total, Scenarios: s.Scenarios}
 }
 
 // Of returns the 0-based shard of run of scenario name among total shards
@@ -46,12 +61,21 @@ func Of(name string, run, total int) int {
 }
 
 // Parse reads "K/N" where K is counted from base (0 or 1): with base 1,
-// "1/4" is the first of four shards. Surrounding spaces are allowed.
+// "1/4" is the first of four shards. "K/N:scenarios" deals whole scenarios
+// (Spec.Scenarios). Surrounding spaces are allowed.
 func Parse(text string, base int) (Spec, error) {
 	if base != 0 && base != 1 {
 		return Spec{}, fmt.Errorf("shard base %d: want 0 or 1", base)
 	}
-	ks, ns, ok := strings.Cut(strings.TrimSpace(text), "/")
+	body, unit, hasUnit := strings.Cut(strings.TrimSpace(text), ":")
+	whole := false
+	if hasUnit {
+		if strings.TrimSpace(unit) != "scenarios" {
+			return Spec{}, fmt.Errorf("shard %q: after the colon only \"scenarios\" is known (deal whole scenarios)", text)
+		}
+		whole = true
+	}
+	ks, ns, ok := strings.Cut(strings.TrimSpace(body), "/")
 	if !ok {
 		return Spec{}, fmt.Errorf("shard %q: want K/N, such as %d/4", text, base)
 	}
@@ -66,7 +90,7 @@ func Parse(text string, base int) (Spec, error) {
 	if k < base || k > n-1+base {
 		return Spec{}, fmt.Errorf("shard %q: with base %d, K runs from %d to %d", text, base, base, n-1+base)
 	}
-	return Spec{Index: k - base, Total: n}, nil
+	return Spec{Index: k - base, Total: n, Scenarios: whole}, nil
 }
 
 // System describes where a CI system puts the shard coordinates.

@@ -119,6 +119,9 @@ func TestParse(t *testing.T) {
 		{"a/4", 0, shard.Spec{}, "whole numbers"},
 		{"1/4", 2, shard.Spec{}, "want 0 or 1"},
 		{"-1/4", 0, shard.Spec{}, "K runs from 0"},
+		{"2/4:scenarios", 1, shard.Spec{Index: 1, Total: 4, Scenarios: true}, ""},
+		{" 0/2 : scenarios ", 0, shard.Spec{Index: 0, Total: 2, Scenarios: true}, ""},
+		{"0/2:runs", 0, shard.Spec{}, `only "scenarios" is known`},
 	}
 	for _, tt := range tests {
 		got, err := shard.Parse(tt.in, tt.base)
@@ -149,13 +152,13 @@ func TestFromEnv(t *testing.T) {
 		want         shard.Spec
 		wantErr      string
 	}{
-		{"gitlab first job", "gitlab", 0, env("CI_NODE_INDEX", "1", "CI_NODE_TOTAL", "3"), shard.Spec{0, 3}, ""},
-		{"gitlab last job", "gitlab", 0, env("CI_NODE_INDEX", "3", "CI_NODE_TOTAL", "3"), shard.Spec{2, 3}, ""},
+		{"gitlab first job", "gitlab", 0, env("CI_NODE_INDEX", "1", "CI_NODE_TOTAL", "3"), shard.Spec{Index: 0, Total: 3}, ""},
+		{"gitlab last job", "gitlab", 0, env("CI_NODE_INDEX", "3", "CI_NODE_TOTAL", "3"), shard.Spec{Index: 2, Total: 3}, ""},
 		{"gitlab zero is invalid", "gitlab", 0, env("CI_NODE_INDEX", "0", "CI_NODE_TOTAL", "3"), shard.Spec{}, "base 1"},
-		{"kubernetes with total", "kubernetes", 6, env("JOB_COMPLETION_INDEX", "5"), shard.Spec{5, 6}, ""},
+		{"kubernetes with total", "kubernetes", 6, env("JOB_COMPLETION_INDEX", "5"), shard.Spec{Index: 5, Total: 6}, ""},
 		{"kubernetes without total", "kubernetes", 0, env("JOB_COMPLETION_INDEX", "5"), shard.Spec{}, "not known"},
-		{"circleci", "circleci", 0, env("CIRCLE_NODE_INDEX", "0", "CIRCLE_NODE_TOTAL", "2"), shard.Spec{0, 2}, ""},
-		{"buildkite", "buildkite", 4, env("BUILDKITE_PARALLEL_JOB", "3", "BUILDKITE_PARALLEL_JOB_COUNT", "4"), shard.Spec{3, 4}, ""},
+		{"circleci", "circleci", 0, env("CIRCLE_NODE_INDEX", "0", "CIRCLE_NODE_TOTAL", "2"), shard.Spec{Index: 0, Total: 2}, ""},
+		{"buildkite", "buildkite", 4, env("BUILDKITE_PARALLEL_JOB", "3", "BUILDKITE_PARALLEL_JOB_COUNT", "4"), shard.Spec{Index: 3, Total: 4}, ""},
 		{"total disagrees", "gitlab", 4, env("CI_NODE_INDEX", "1", "CI_NODE_TOTAL", "3"), shard.Spec{}, "but 4 shards were given"},
 		{"unset", "gitlab", 0, env(), shard.Spec{}, "CI_NODE_INDEX is not set"},
 		{"github", "github", 0, env(), shard.Spec{}, "unknown CI system"},
@@ -219,6 +222,44 @@ func TestSplitMerge(t *testing.T) {
 	}
 }
 
+// TestSplitMergeWholeScenarios deals whole scenarios: every shard holds all
+// runs of its scenarios, keeps their metrics and gates, and the merge
+// equals the unsharded suite in full.
+func TestSplitMergeWholeScenarios(t *testing.T) {
+	full := sample.Suite()
+	for total := 2; total <= 5; total++ {
+		var parts []*result.Suite
+		for i := 0; i < total; i++ {
+			spec := shard.Spec{Index: i, Total: total, Scenarios: true}
+			p := shard.Select(full, spec)
+			for j, sc := range p.Scenarios {
+				if n := len(sc.Runs); n != 0 && n != len(full.Scenarios[j].Runs) {
+					t.Fatalf("shard %v splits scenario %s", spec, sc.Name)
+				}
+				for _, r := range sc.Runs {
+					if !spec.Holds(sc.Name, r.Index) || shard.Of(sc.Name, 0, total) != i {
+						t.Fatalf("run %d of %s in shard %d, its run 0 in %d", r.Index, sc.Name, i, shard.Of(sc.Name, 0, total))
+					}
+				}
+			}
+			parts = append(parts, p)
+		}
+		got, err := result.Merge(parts...)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if d := cmp.Diff(full, got, cmpopts.EquateNaNs(), cmpopts.EquateEmpty(),
+			cmp.Comparer(func(a, b result.Trace) bool { return reflect.DeepEqual(a, b) })); d != "" {
+			t.Errorf("total %d: merged (-unsharded +merged):\n%s", total, d)
+		}
+		// Mixing the two ways of dealing is refused.
+		parts[0].Shard.Scenarios = false
+		if _, err := result.Merge(parts...); err == nil || !strings.Contains(err.Error(), "whole scenarios") {
+			t.Errorf("total %d: mixed dealing: error %v", total, err)
+		}
+	}
+}
+
 func TestMergeReportsOverlapAndGaps(t *testing.T) {
 	full := sample.Suite()
 	s0 := shard.Select(full, shard.Spec{Index: 0, Total: 3})
@@ -272,7 +313,11 @@ func FuzzParse(f *testing.F) {
 			t.Fatalf("Parse(%q, %d) = %v, which is not a valid shard", text, base, spec)
 		}
 		// The spec written back with the same base parses to itself.
-		again, err := shard.Parse(fmt.Sprintf("%d/%d", spec.Index+base, spec.Total), base)
+		back := fmt.Sprintf("%d/%d", spec.Index+base, spec.Total)
+		if spec.Scenarios {
+			back += ":scenarios"
+		}
+		again, err := shard.Parse(back, base)
 		if err != nil || again != spec {
 			t.Fatalf("round trip of %v: %v, %v", spec, again, err)
 		}
