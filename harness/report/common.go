@@ -188,3 +188,24 @@ func plural(n int, one, many string) string {
 
 // runOK reports whether a run needs no detail in a summary.
 func runOK(r *result.Run) bool { return r.Status == result.Pass || r.Status == result.Skip }
+
+// detailRuns returns the first limit runs of sc that did not pass, in
+// index order, and how many more there are.
+func detailRuns(sc *result.Scenario, limit int) (runs []*result.Run, more int) {
+	for i := range sc.Runs {
+		if runOK(&sc.Runs[i]) {
+			continue
+		}
+		if len(runs) < limit {
+			runs = append(runs, &sc.Runs[i])
+		} else {
+			more++
+		}
+	}
+	return runs, more
+}
+
+// moreRuns is the note for runs left out of the details.
+func moreRuns(more int) string {
+	return fmt.Sprintf("%s that did not pass not shown; the JSON and HTML reports have them all", plural(more, "more run", "more runs"))
+}

@@ -56,6 +56,7 @@ type htmlScenario struct {
 	Runs        int
 	MeanGOSPA   string
 	Shown       string // which run is plotted and why
+	More        string // note on runs left out of Problems
 	Problems    []htmlProblem
 	Plane       template.HTML
 	Timeline    template.HTML
@@ -78,11 +79,11 @@ func htmlScenarioOf(sc *result.Scenario, i int) htmlScenario {
 	if g, ok := meanGOSPA(sc); ok {
 		h.MeanGOSPA = num(g)
 	}
-	for ri := range sc.Runs {
-		r := &sc.Runs[ri]
-		if runOK(r) {
-			continue
-		}
+	runs, more := detailRuns(sc, htmlRuns)
+	if more > 0 {
+		h.More = moreRuns(more) + "."
+	}
+	for _, r := range runs {
 		for ci := range r.Checks {
 			ch := &r.Checks[ci]
 			if ch.Status == result.Pass || ch.Status == result.Skip {
@@ -168,6 +169,10 @@ func divergenceLine(label string, d *result.Divergence) string {
 	}
 	return s + ": " + d.Message
 }
+
+// htmlRuns is how many runs that did not pass the page details per
+// scenario.
+const htmlRuns = 5
 
 // pickRun returns the run to plot: the first that failed, faulted or
 // errored, else the first tie, else run 0 (the first run listed).

@@ -13,6 +13,9 @@ type MarkdownOptions struct {
 	// Limit is the most bytes to write (0 means DefaultMarkdownLimit).
 	// Whole sections are dropped to fit, with a note saying how many.
 	Limit int
+	// Runs is how many runs that did not pass are detailed per scenario
+	// (0 means 3); a line counts the others.
+	Runs int
 }
 
 // DefaultMarkdownLimit keeps the summary inside a GitHub review comment
@@ -71,7 +74,7 @@ func Markdown(w io.Writer, s *result.Suite, opt MarkdownOptions) error {
 	}
 	var sections []string
 	for i := range s.Scenarios {
-		sections = append(sections, markdownFailures(&s.Scenarios[i])...)
+		sections = append(sections, markdownFailures(&s.Scenarios[i], opt.Runs)...)
 	}
 
 	var out strings.Builder
@@ -138,13 +141,13 @@ func fence(body string) string {
 	return strings.Repeat("`", max(3, longest+1))
 }
 
-func markdownFailures(sc *result.Scenario) []string {
+func markdownFailures(sc *result.Scenario, limit int) []string {
+	if limit <= 0 {
+		limit = 3
+	}
 	var out []string
-	for ri := range sc.Runs {
-		r := &sc.Runs[ri]
-		if runOK(r) {
-			continue
-		}
+	runs, more := detailRuns(sc, limit)
+	for _, r := range runs {
 		var b strings.Builder
 		fmt.Fprintf(&b, "\n**`%s` run %d** (seed %d): %s\n\n", code(sc.Name), r.Index, r.Seed, statusWord(r.Status))
 		for ci := range r.Checks {
@@ -193,6 +196,9 @@ func markdownFailures(sc *result.Scenario) []string {
 			}
 		}
 		out = append(out, b.String())
+	}
+	if more > 0 {
+		out = append(out, fmt.Sprintf("\n_`%s`: %s._\n", code(sc.Name), moreRuns(more)))
 	}
 	for _, g := range sc.Gates {
 		if g.Status == result.Fail || g.Status == result.Error {

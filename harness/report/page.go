@@ -96,6 +96,7 @@ svg .band { fill:#2e7d4f; fill-opacity:.12; stroke:#2e7d4f; stroke-opacity:.4; }
 {{with .DiffNote}}<p class="note">Showing {{.}}.</p>{{end}}
 {{with .Stderr}}<pre>{{.}}</pre>{{end}}
 </div>
+{{end}}{{with .More}}<p class="note">{{.}}</p>
 {{end}}<div class="plots">
 <p class="note">{{.Shown}}</p>
 {{with .Plane}}<h3>Positions</h3>

@@ -436,3 +436,28 @@ func TestOddSuites(t *testing.T) {
 		})
 	}
 }
+
+// TestRunDetailsLimited: a scenario with many failing runs details only
+// the first few in each format and counts the rest.
+func TestRunDetailsLimited(t *testing.T) {
+	s := sample.Suite()
+	sc := &s.Scenarios[2] // coastal: run 1 fails
+	for i := 3; i < 10; i++ {
+		r := sc.Runs[1]
+		r.Index, r.Seed, r.Trace = i, uint64(500+i), nil
+		sc.Runs = append(sc.Runs, r)
+	}
+	sc.RunsPlanned = len(sc.Runs) // 10 runs, 8 failing
+	term := string(render(t, func(b *bytes.Buffer) error { return report.Terminal(b, s, report.TerminalOptions{}) }))
+	if n := strings.Count(term, "clutter_coastal_radar run "); n != 3 || !strings.Contains(term, "5 more runs that did not pass not shown") {
+		t.Errorf("terminal details %d coastal runs; want 3 and a count of 5 more:\n%s", n, term)
+	}
+	md := string(render(t, func(b *bytes.Buffer) error { return report.Markdown(b, s, report.MarkdownOptions{Runs: 2}) }))
+	if n := strings.Count(md, "**`clutter_coastal_radar` run "); n != 2 || !strings.Contains(md, "6 more runs that did not pass not shown") {
+		t.Errorf("markdown details %d coastal runs; want 2 and a count of 6 more", n)
+	}
+	page := string(render(t, func(b *bytes.Buffer) error { return report.HTML(b, s) }))
+	if n := strings.Count(page, "reference check: FAIL</h3>"); n != 5 || !strings.Contains(page, "3 more runs that did not pass not shown") {
+		t.Errorf("html details %d failing reference checks; want 5 and a count of 3 more", n)
+	}
+}

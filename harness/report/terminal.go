@@ -20,6 +20,9 @@ type TerminalOptions struct {
 	// StderrLines is how many trailing lines of a tracker's stderr to show
 	// (0 means 8).
 	StderrLines int
+	// Runs is how many runs that did not pass are detailed per scenario
+	// (0 means 3); a line counts the others.
+	Runs int
 }
 
 // The palette: one colour per status, chosen to stay legible on dark and
@@ -66,6 +69,9 @@ func Terminal(w io.Writer, s *result.Suite, opt TerminalOptions) error {
 	if opt.StderrLines <= 0 {
 		opt.StderrLines = 8
 	}
+	if opt.Runs <= 0 {
+		opt.Runs = 3
+	}
 	t := &term{w: bufio.NewWriter(w), opt: opt}
 	nameWidth := 8
 	for _, sc := range s.Scenarios {
@@ -107,11 +113,8 @@ func Terminal(w io.Writer, s *result.Suite, opt TerminalOptions) error {
 }
 
 func (t *term) details(sc *result.Scenario) {
-	for ri := range sc.Runs {
-		r := &sc.Runs[ri]
-		if runOK(r) {
-			continue
-		}
+	runs, more := detailRuns(sc, t.opt.Runs)
+	for _, r := range runs {
 		t.printf("\n%s run %d (seed %d): %s\n", t.paint(ansiBold, sc.Name), r.Index, r.Seed, t.status(r.Status, 0))
 		for ci := range r.Checks {
 			c := &r.Checks[ci]
@@ -156,6 +159,9 @@ func (t *term) details(sc *result.Scenario) {
 				}
 			}
 		}
+	}
+	if more > 0 {
+		t.printf("\n%s: %s\n", t.paint(ansiBold, sc.Name), moreRuns(more))
 	}
 	for _, g := range sc.Gates {
 		if g.Status == result.Pass || g.Status == result.Tie {
