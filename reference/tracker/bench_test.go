@@ -49,13 +49,14 @@ func benchScene(b *testing.B, objects, clutter int, side float64) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	b.ReportMetric(float64(d.Clusters), "clusters")
 	b.ReportAllocs()
 	for b.Loop() {
 		if _, err := eng.associate(0, ids, xs, ps, scan); err != nil {
 			b.Fatal(err)
 		}
 	}
+	b.ReportMetric(float64(d.Clusters), "clusters")
+	b.ReportMetric(float64(len(scan.Detections)), "detections")
 }
 
 // BenchmarkScan100 is one GNN scan of 100 objects and 200 detections (90
