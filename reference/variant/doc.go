@@ -72,11 +72,12 @@
 // And for the port certification (fma_test.go):
 //
 //	fused     the reference's predict and update written with plain x*y + z
-//	          expressions, without the float64(x*y) conversions, so the
-//	          compiler fuses multiply-adds on arm64 and on amd64 with
-//	          GOAMD64=v3. On amd64 v1 it is the reference to the bit; where
-//	          it is fused it differs in the last bits and passes the
-//	          float64-port profile.
+//	          expressions, without the float64(x*y) conversions and
+//	          skipping zero terms, so the compiler fuses multiply-adds on
+//	          arm64 and on amd64 with GOAMD64=v3 (see fused.go). On amd64
+//	          v1 it is the reference to the bit; where it is fused it
+//	          differs in the last bits and passes the float64-port profile
+//	          (harness/catalogue TestPortCertification).
 //
 // # Determinism
 //
