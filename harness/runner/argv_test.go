@@ -47,7 +47,8 @@ func TestSplitCommand(t *testing.T) {
 }
 
 // quote writes one word so that SplitCommand reads it back: inside single
-// quotes, with each ' written as '\” (common practice in shell scripts).
+// quotes, with each single quote written as quote, backslash, quote, quote
+// (common practice in shell scripts).
 func quote(w string) string { return "'" + strings.ReplaceAll(w, "'", `'\''`) + "'" }
 
 // FuzzSplitCommand: SplitCommand never panics, and the words it returns,
