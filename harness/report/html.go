@@ -256,6 +256,14 @@ type bounds struct {
 	any            bool
 }
 
+// pad widens the bounds by frac of their size on every side, and by at
+// least min.
+func (b *bounds) pad(frac, min float64) {
+	dx := math.Max(frac*(b.x1-b.x0), min)
+	dy := math.Max(frac*(b.y1-b.y0), min)
+	b.x0, b.x1, b.y0, b.y1 = b.x0-dx, b.x1+dx, b.y0-dy, b.y1+dy
+}
+
 func (b *bounds) add(x, y float64) {
 	if !finite(x, y) {
 		return
@@ -301,9 +309,17 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 	addPath(tr.Truth, false)
 	addPath(tr.Reference, true)
 	addPath(tr.Tracker, true)
-	for _, step := range tr.Detections {
-		for _, pt := range step {
-			b.add(pt.X, pt.Y)
+	// The plot frames the objects and tracks; clutter far from them is
+	// left out rather than shrinking the tracks to a corner.
+	if b.any {
+		b.pad(0.08, 1)
+	}
+	framed := b.any
+	if !framed {
+		for _, step := range tr.Detections {
+			for _, pt := range step {
+				b.add(pt.X, pt.Y)
+			}
 		}
 	}
 	s := &svg{}
@@ -317,7 +333,7 @@ func planePlot(tr *result.Trace, m marks) template.HTML {
 	s.add(`<g clip-path="none">`)
 	for _, step := range tr.Detections {
 		for _, pt := range step {
-			if finite(pt.X, pt.Y) {
+			if finite(pt.X, pt.Y) && f.inside(pt.X, pt.Y) {
 				s.add(`<circle class="det" cx="%s" cy="%s" r="2.2"/>`, f1(f.px(pt.X)), f1(f.py(pt.Y)))
 			}
 		}
@@ -403,9 +419,13 @@ func timePlot(tr *result.Trace, m marks) template.HTML {
 			}
 		}
 	}
-	for k, step := range tr.Detections {
-		for _, pt := range step {
-			b.add(float64(k), pt.X)
+	if b.any {
+		b.pad(0.08, 1)
+	} else {
+		for k, step := range tr.Detections {
+			for _, pt := range step {
+				b.add(float64(k), pt.X)
+			}
 		}
 	}
 	s := &svg{}
@@ -418,7 +438,7 @@ func timePlot(tr *result.Trace, m marks) template.HTML {
 	s.axes(f, "step", "position (m)")
 	for k, step := range tr.Detections {
 		for _, pt := range step {
-			if finite(pt.X) {
+			if finite(pt.X) && f.inside(float64(k), pt.X) {
 				s.add(`<circle class="det" cx="%s" cy="%s" r="2.2"/>`, f1(f.px(float64(k))), f1(f.py(pt.X)))
 			}
 		}

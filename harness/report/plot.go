@@ -123,6 +123,9 @@ type frame struct {
 func (f *frame) px(x float64) float64 { return f.left + (x-f.x0)/(f.x1-f.x0)*f.width }
 func (f *frame) py(y float64) float64 { return f.top + f.height - (y-f.y0)/(f.y1-f.y0)*f.height }
 
+// inside reports whether the data point lies in the frame's range.
+func (f *frame) inside(x, y float64) bool { return x >= f.x0 && x <= f.x1 && y >= f.y0 && y <= f.y1 }
+
 // newFrame builds a frame for data [xlo,xhi]×[ylo,yhi] with nice ticks.
 // With equal set, one data unit has the same length on both axes: the
 // shorter range is widened about its centre.
