@@ -4,9 +4,12 @@ import (
 	"math"
 	"regexp"
 	"strconv"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"trackgate/harness/result"
 )
 
 // TestTicks checks the loose labelling of Heckbert, "Nice Numbers for
@@ -117,5 +120,28 @@ func TestLabelsApart(t *testing.T) {
 	}
 	if ys["far"] != 50 {
 		t.Errorf("a label with room moved to y=%v", ys["far"])
+	}
+}
+
+// TestPlaneFramesTracks: clutter far from the objects is left out of the
+// frame instead of shrinking the tracks.
+func TestPlaneFramesTracks(t *testing.T) {
+	tr := &result.Trace{
+		Truth:      []result.Path{{ID: "skiff", Points: []result.Point{{Step: 0, X: 0, Y: 0}, {Step: 1, X: 10, Y: 5}}}},
+		Detections: [][]result.Point{{{Step: 0, X: 0.5, Y: 0.2}, {Step: 0, X: 9000, Y: -4000}}, {{Step: 1, X: 9.7, Y: 5.1}}},
+	}
+	out := string(planePlot(tr, marks{first: -1}))
+	dets := regexp.MustCompile(`<circle class="det"[^>]*r="2.2"`) // not the legend's
+	if n := len(dets.FindAllString(out, -1)); n != 2 {
+		t.Errorf("%d detections drawn, want the 2 near the skiff", n)
+	}
+	// The x ticks stay at the skiff's scale (steps of a few metres).
+	if strings.Contains(out, ">9000<") || strings.Contains(out, ">5000<") {
+		t.Error("the frame stretched to the far clutter")
+	}
+	// Without objects or tracks, the detections set the frame.
+	only := string(planePlot(&result.Trace{Detections: tr.Detections}, marks{first: -1}))
+	if n := len(dets.FindAllString(only, -1)); n != 3 {
+		t.Errorf("%d detections drawn with nothing else to frame, want 3", n)
 	}
 }
