@@ -563,9 +563,15 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 		for _, sc := range scens {
 			inv.Runs[sc.spec.Name] = s.goldenRunsOf(sc)
 		}
-		rep.Orphans = tree.Orphans(inv)
-		if o.Prune && len(rep.Orphans) > 0 && !pol.CI {
-			if err := tree.Remove(s.goldenRoot, rep.Orphans); err != nil {
+		orphans := tree.Orphans(inv)
+		for _, p := range orphans {
+			if rel, err := filepath.Rel(s.goldenRoot, p); err == nil && !strings.HasPrefix(rel, "..") {
+				p = rel
+			}
+			rep.Orphans = append(rep.Orphans, p)
+		}
+		if o.Prune && len(orphans) > 0 && !pol.CI {
+			if err := tree.Remove(s.goldenRoot, orphans); err != nil {
 				rep.Problems = append(rep.Problems, fmt.Sprintf("removing orphans: %v", err))
 			} else {
 				rep.Pruned = true
