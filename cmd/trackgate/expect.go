@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 
-	"trackgate/harness/mot"
 	"trackgate/harness/scenario"
 	"trackgate/harness/sim"
 	"trackgate/reference/tracker"
@@ -60,11 +59,7 @@ func runExpect(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "trackgate expect: %s: %v\n", file, err)
 		return exitUsage
 	}
-	objects := make([]mot.Object, len(spec.Objects))
-	for i, o := range spec.Objects {
-		objects[i] = o.Object
-	}
-	ex, err := tracker.RunAll(tracker.Config{Model: spec.Model, Objects: objects, K: *k}, s.Run(*runIndex))
+	ex, err := tracker.RunAll(tracker.ConfigFor(spec, *k), s.Run(*runIndex))
 	if err != nil {
 		fmt.Fprintf(stderr, "trackgate expect: %s: %v\n", file, err)
 		return exitFail

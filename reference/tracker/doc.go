@@ -58,9 +58,12 @@
 //
 // # Hypotheses
 //
-// Each cluster ranks its k best hypotheses (Murty's method); the k best
-// hypotheses of the scan are the k smallest sums that pick one hypothesis
-// per cluster. The best has the total of the cluster optima; the margin,
+// Each cluster ranks its max(k, 2) + 1 best hypotheses (Murty's method; a
+// one-object cluster simply sorts its entries), so that the margin is known
+// even for k = 1 and a list that stops short proves itself complete. A
+// hypothesis costs the sum of its entries added in row order, so equal
+// events cost the same bits. The k best hypotheses of the scan are the k
+// smallest sums that pick one hypothesis per cluster. The best has the total of the cluster optima; the margin,
 // cost(2nd best) − cost(best), is the smallest second-best gap over the
 // clusters (+∞ when the scan has a single hypothesis).
 //

@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"trackgate/harness/mot"
+	"trackgate/harness/scenario"
 )
 
 // Expected is the reference run over one simulated run: per step the frame
@@ -30,4 +31,14 @@ func RunAll(cfg Config, run mot.Run) (Expected, error) {
 		ex.Steps = append(ex.Steps, d)
 	}
 	return ex, nil
+}
+
+// ConfigFor returns the configuration of the reference run for a loaded
+// scenario, with k hypotheses per scan (0 means DefaultK).
+func ConfigFor(spec *scenario.Spec, k int) Config {
+	objects := make([]mot.Object, len(spec.Objects))
+	for i, o := range spec.Objects {
+		objects[i] = o.Object
+	}
+	return Config{Model: spec.Model, Objects: objects, K: k}
 }
