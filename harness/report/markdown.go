@@ -101,7 +101,21 @@ func Markdown(w io.Writer, s *result.Suite, opt MarkdownOptions) error {
 		}
 		out.WriteString(sec)
 	}
-	_, err := io.WriteString(w, out.String())
+	text := out.String()
+	if len(text) > limit {
+		// Only an enormous header (notes, names) gets here: cut at a line.
+		note := fmt.Sprintf("\n_Cut to %d bytes._\n", limit)
+		keep := max(0, limit-len(note))
+		cut := strings.LastIndexByte(text[:keep], '\n')
+		if cut < 0 {
+			cut = 0
+		}
+		text = strings.ToValidUTF8(text[:cut], "") + note
+		if len(text) > limit {
+			text = text[:0]
+		}
+	}
+	_, err := io.WriteString(w, text)
 	return err
 }
 

@@ -461,3 +461,24 @@ func TestRunDetailsLimited(t *testing.T) {
 		t.Errorf("html details %d failing reference checks; want 5 and a count of 3 more", n)
 	}
 }
+
+// FuzzMarkdownLimit: whatever the text, the summary never exceeds its limit.
+func FuzzMarkdownLimit(f *testing.F) {
+	f.Add("a note", "quay", 300)
+	f.Add(strings.Repeat("long note ", 400), "x", 500)
+	f.Fuzz(func(t *testing.T, note, name string, limit int) {
+		if limit < 1 || limit > 1<<20 {
+			return
+		}
+		s := hostile()
+		s.Notes = []string{note}
+		s.Scenarios[0].Name = name
+		var b bytes.Buffer
+		if err := report.Markdown(&b, s, report.MarkdownOptions{Limit: limit}); err != nil {
+			t.Fatal(err)
+		}
+		if b.Len() > limit {
+			t.Fatalf("wrote %d bytes, limit %d", b.Len(), limit)
+		}
+	})
+}
