@@ -42,7 +42,8 @@ import (
 // Suite.Notes says so, so that a gate is re-evaluated on the merged
 // metrics rather than trusted.
 //
-// Merge does not modify its arguments. Errors name the shard (by its
+// Merge does not modify its arguments; the merged suite shares runs'
+// slices (checks, traces) with them. Errors name the shard (by its
 // position among the arguments, and its index) and the scenario and run.
 func Merge(suites ...*Suite) (*Suite, error) {
 	if len(suites) == 0 {
