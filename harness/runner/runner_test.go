@@ -45,7 +45,7 @@ func findCheck(t *testing.T, s *result.Suite, i, r int, name string) result.Chec
 // are never regressions.
 func TestHarmlessVariantsPass(t *testing.T) {
 	files := []string{scenarioFile("crossing-harbour-vessels"), scenarioFile("lifecycle-warehouse-forklifts"), scenarioFile("tie-mirror-pair")}
-	for _, variant := range []string{"reference", "relabel", "nocov"} {
+	for _, variant := range []string{"reference", "relabel", "nocov", "nocov-flip"} {
 		t.Run(variant, func(t *testing.T) {
 			o := variantOptions(variant, files...)
 			o.Against, o.Runs = AgainstReference, 2

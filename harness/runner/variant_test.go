@@ -47,15 +47,16 @@ func variantOptions(variant string, files ...string) Options {
 //	drop        at step 4 the last track is left out
 //	crash       exits with status 7 on the scan of step 3
 //	flip        the detections of every scan handed over in reverse order
+//	nocov-flip  flip, reporting neither covariances nor associations
 func serveVariant(variant string) int {
 	ready := protocol.Ready{Name: "variant-" + variant, Version: "1", Covariance: true, Association: true, ManyRuns: true}
-	if variant == "nocov" {
+	if variant == "nocov" || variant == "nocov-flip" {
 		ready.Covariance, ready.Association = false, false
 	}
 	err := protocol.Serve(os.Stdin, os.Stdout, ready, func(s protocol.Start) (protocol.StepFunc, error) {
 		ref := tracker.New(tracker.Config{Model: s.Model, Objects: s.Objects})
 		return func(scan mot.Scan) (mot.Frame, error) {
-			if variant == "relabel" || variant == "flip" {
+			if variant == "relabel" || variant == "flip" || variant == "nocov-flip" {
 				scan.Detections = slices.Clone(scan.Detections)
 				slices.Reverse(scan.Detections)
 			}
@@ -71,7 +72,7 @@ func serveVariant(variant string) int {
 					f.Tracks[i].Track = "trk-" + reverse(f.Tracks[i].Track)
 				}
 				slices.Reverse(f.Tracks)
-			case "nocov":
+			case "nocov", "nocov-flip":
 				for i := range f.Tracks {
 					f.Tracks[i].Cov = mot.Mat{}
 					f.Tracks[i].HasDetection, f.Tracks[i].Detection = false, mot.NoDetection

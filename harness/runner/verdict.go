@@ -267,6 +267,19 @@ func (s *settings) checkReference(j *job) result.Check {
 				}
 			}
 		}
+		if !ready.Association && isTie(d.Margin, j.sc.tie) && len(d.Hypotheses) > 1 {
+			// The tracker does not say which hypothesis it took: from an
+			// ambiguous step on, the objects whose association differs
+			// between the two best hypotheses are no longer compared.
+			for row, od := range d.Objects {
+				if d.Hypotheses[0].Assoc[row] != d.Hypotheses[1].Assoc[row] {
+					stop(od.Object, k)
+					if _, ok := j.ties[od.Object]; !ok {
+						j.ties[od.Object] = k
+					}
+				}
+			}
+		}
 		for _, od := range d.Objects {
 			i, ok := v.byObj[od.Object]
 			if _, st := stopped[od.Object]; !ok || st {
