@@ -92,8 +92,8 @@ type Options struct {
 	// AllTraces keeps the plot traces of every run; by default only run 0
 	// of each scenario and the runs that did not pass carry one.
 	AllTraces bool
-	// Timing fills result.Run.Seconds and Timing; leave it off where
-	// byte-identical results are wanted.
+	// Timing fills result.Run.Seconds (the tracker phase's share per run);
+	// leave it off where byte-identical results are wanted.
 	Timing bool
 	// Tool is written into result.Suite.Tool ("" means "trackgate").
 	Tool string
