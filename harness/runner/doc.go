@@ -35,7 +35,10 @@
 //     its k best. Estimates are compared with the tolerance profile until the
 //     object's first tie or divergence; later steps of that object are not
 //     compared (the message says so), since after a legitimately different
-//     choice the two runs need not agree. Tracks for objects that are not
+//     choice the two runs need not agree. For a tracker that does not report
+//     associations, an object stops being compared at the first step whose
+//     margin is within the threshold and whose two best hypotheses give it
+//     different detections. Tracks for objects that are not
 //     alive, and live objects without a track, are divergences of kind
 //     "track-count".
 //   - conformance (trackers that report covariances): at each step k the
