@@ -48,9 +48,9 @@ configuration or scenario, or a stale golden; 3 the tracker itself faulted
 // commonFlags are the flags check and bless share.
 type commonFlags struct {
 	tracker, against, configFile, shardText, profile, out, name *string
-	runs, jobs, shardBase, goldenRuns                          *int
-	ci                                                         *bool
-	cutoff                                                     *float64
+	runs, jobs, shardBase, goldenRuns                           *int
+	ci                                                          *bool
+	cutoff                                                      *float64
 }
 
 func addCommon(fs *flag.FlagSet, withAgainst bool) *commonFlags {
