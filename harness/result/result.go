@@ -1,10 +1,3 @@
-// Package result holds the complete outcome of a trackgate run: every check,
-// metric, divergence and tracker fault, per scenario and run. It is the one
-// source every report format is rendered from, and it is written to disk as
-// versioned JSON (see Version) so that a report can be redrawn later.
-//
-// The types carry data only; checking, metrics and rendering live in other
-// packages.
 package result
 
 // Version is the version of the result JSON layout. It changes whenever a
