@@ -58,6 +58,12 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 		Gated: make([][]Entry, r), Miss: make([]float64, r),
 	}
 	projs := make([]kalman.Projection, r)
+	// One backing array for every projection's buffers.
+	pbuf := make([]float64, r*(m+2*m*m))
+	for i := range projs {
+		b := pbuf[i*(m+2*m*m):]
+		projs[i].Zhat, projs[i].S, projs[i].L = b[:m:m], b[m:m+m*m:m+m*m], b[m+m*m:m+2*m*m:m+2*m*m]
+	}
 
 	// Detections sorted by their first coordinate: a detection outside
 	// |z₀ − ẑ₀| ≤ √(γ S₀₀) cannot be in the gate, since d² ≥ ν₀²/S₀₀.
@@ -96,10 +102,11 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 		rowToDet[i] = -1
 	}
 	coasting := make([]bool, r)
+	local := make([]int, len(dets)) // detection column → cluster column, filled per cluster
 	var feasible []*cluster
 	for ci := range clusters {
 		c := &clusters[ci]
-		if err := e.rank(&cm, c); err != nil {
+		if err := e.rank(&cm, c, local); err != nil {
 			if errors.Is(err, assign.ErrInfeasible) {
 				for _, row := range c.rows {
 					coasting[row] = true
@@ -121,14 +128,23 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 
 	// Updates with the best hypothesis.
 	d.Objects = make([]ObjectDetail, r)
+	per := 2 * (n + n*n)
+	obuf := make([]float64, r*per)
 	for i := 0; i < r; i++ {
+		b := obuf[i*per : (i+1)*per : (i+1)*per]
+		pm, pc := b[:n:n], b[n:n+n*n:n+n*n]
+		um, uc := b[n+n*n:2*n+n*n:2*n+n*n], b[2*n+n*n:]
+		copy(pm, xs[i])
+		copy(pc, ps[i])
+		copy(um, xs[i])
+		copy(uc, ps[i])
 		od := ObjectDetail{
 			Object:    ids[i],
-			PredMean:  append([]float64(nil), xs[i]...),
-			PredCov:   mot.Mat{Rows: n, Cols: n, Data: append([]float64(nil), ps[i]...)},
+			PredMean:  pm,
+			PredCov:   mot.Mat{Rows: n, Cols: n, Data: pc},
 			Detection: mot.NoDetection, NIS: math.NaN(), Coasting: coasting[i],
-			Mean: append([]float64(nil), xs[i]...),
-			Cov:  mot.Mat{Rows: n, Cols: n, Data: append([]float64(nil), ps[i]...)},
+			Mean: um,
+			Cov:  mot.Mat{Rows: n, Cols: n, Data: uc},
 		}
 		if j := rowToDet[i]; j >= 0 {
 			res := e.f.UpdateTo(od.Mean, od.Cov.Data, xs[i], ps[i], &projs[i], dets[j].Z)
@@ -195,10 +211,10 @@ func split(cm *CostMatrix) []cluster {
 }
 
 // rank fills c.hyps, c.count, c.logZ and c.exact.
-func (e *engine) rank(cm *CostMatrix, c *cluster) error {
+// local is scratch of one entry per detection column.
+func (e *engine) rank(cm *CostMatrix, c *cluster, local []int) error {
 	nr, nd := len(c.rows), len(c.cols)
 	cols := nd + nr
-	local := make(map[int]int, nd)
 	for a, j := range c.cols {
 		local[j] = a
 	}
@@ -267,11 +283,15 @@ func (e *engine) rank(cm *CostMatrix, c *cluster) error {
 // rankSingle ranks the finite entries of a one-row matrix, cheapest first
 // (ties by column), keeping at most k.
 func rankSingle(cost []float64, cols, k int) []assign.Hypothesis {
-	var hyps []assign.Hypothesis
+	idx := make([]int, 0, cols)
 	for j := 0; j < cols; j++ {
 		if !math.IsInf(cost[j], 1) {
-			hyps = append(hyps, assign.Hypothesis{Cost: cost[j], RowToCol: []int{j}})
+			idx = append(idx, j)
 		}
+	}
+	hyps := make([]assign.Hypothesis, len(idx))
+	for q, j := range idx {
+		hyps[q] = assign.Hypothesis{Cost: cost[j], RowToCol: idx[q : q+1 : q+1]}
 	}
 	slices.SortFunc(hyps, func(a, b assign.Hypothesis) int {
 		if c := cmp.Compare(a.Cost, b.Cost); c != 0 {
