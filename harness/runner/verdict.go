@@ -360,6 +360,7 @@ func (s *settings) checkConformance(j *job) result.Check {
 		}
 		v := newView(&dd, f, j.names)
 		var changed []string
+		var estDivs []result.Divergence
 		for _, od := range dd.Objects {
 			i, ok := v.byObj[od.Object]
 			if !ok {
@@ -378,10 +379,12 @@ func (s *settings) checkConformance(j *job) result.Check {
 			}
 			r := compareEstimate(j.sc.profile, k, est, od.Object, mean, cov)
 			if !r.OK() {
-				b.fail(estimateDivergence(k, od.Object, r, "one step from the tracker's own previous estimate, the update differs"))
+				estDivs = append(estDivs, estimateDivergence(k, od.Object, r, "one step from the tracker's own previous estimate, the update differs"))
 				b.diffs(r.Diffs)
 			}
 		}
+		// An association fault is named before the estimate faults of the
+		// same step.
 		if len(changed) > 0 {
 			div := assocDivergence(k, &dd, f, v, changed, true, "the reference restarted from the tracker's state")
 			if isTie(dd.Margin, j.sc.tie) {
@@ -389,6 +392,9 @@ func (s *settings) checkConformance(j *job) result.Check {
 			} else {
 				b.fail(div)
 			}
+		}
+		for _, d := range estDivs {
+			b.fail(d)
 		}
 	}
 	summary := fmt.Sprintf("%d steps restarted from the tracker's own estimates", len(j.res.Frames))
