@@ -111,18 +111,32 @@ func benches() []bench {
 // its problems are logged instead of failing the test, and the test fails
 // when it starts to come out right, so that the entry is removed.
 var knownWeaknesses = map[string]string{
-	// After a tie resolved the other way (tie-flip) or a greedy swap, the
-	// tracker's tracks follow each other's objects for the rest of the run.
-	// The reference and conformance checks pair track names with objects
-	// by one compare.Align over the whole run, which then pairs each track
-	// with the object it followed for most of the run, and judges the
-	// steps before the swap under that pairing: tie-mirror-pair run 0 fails
-	// at step 0 ("the reference chose detection 0, the tracker detection
-	// 1", margin 6.9) although the tracker's step 0 is the reference's to
-	// the bit, and greedy on the convoy is reported at step 0 instead of
-	// its first real departure.
-	"tie-flip@float64-port": "whole-run alignment re-pairs tracks after a tie, earlier steps are judged under the wrong pairing",
-	"greedy@float64-port":   "whole-run alignment re-pairs tracks after a swap, the first divergence is reported too early",
+	// The reference check of harness/runner compares a tracker's whole run
+	// with the reference's and stops comparing an object after its first
+	// tie, but keeps comparing the other objects with the reference run's
+	// associations and margins, although their association now depends on
+	// the stopped objects' states through shared gated detections. In
+	// convoy-parallel-trucks run 1, tie-flip takes the second-best
+	// hypothesis at step 4 (margin 0.279 ≤ τ = 0.5, a tie, lorry-2 and
+	// lorry-3 stopped); at step 5, in its own context, the best of the
+	// cluster of all five lorries leads by 0.258, a tie again, while the
+	// reference run's margin there is 0.758, so lorry-1, lorry-4 and
+	// lorry-5 are reported as association regressions. The conformance
+	// check, restarted from the tracker's states, rightly sees a tie. Fix:
+	// in the reference check, stop an object also when it shares a cluster
+	// (a gated detection) with a stopped object, or leave association
+	// verdicts after the first tie to the conformance check.
+	"tie-flip@float64-port": "after a tie the reference check judges objects clustered with the tied ones by the reference run's margins",
+	// The tracks are paired with objects by compare.Align over the steps
+	// up to the first tie (all of them when there is none). A harmful
+	// swap is not a tie, so a greedy tracker whose tracks swap objects at
+	// step 1 and keep them swapped is paired by the later, longer part of
+	// the run, and its steps before the swap, identical to the
+	// reference's, are reported as the first divergence (convoy runs 0
+	// and 2: step 0 instead of steps 1 and 4). Fix: align only over the
+	// steps before the first changed association of any kind, as is
+	// already done before the first tie.
+	"greedy@float64-port": "tracks are aligned over the whole run after a harmful swap, so the first divergence is reported too early",
 }
 
 // TestCatalogue runs every bench through the gate and prints the tally.
