@@ -56,7 +56,7 @@
 // UpdateTo allocate nothing (Projection buffers are allocated once on first
 // use and reused). A Filter is not safe for concurrent use.
 //
-// References:
+// References (section and equation numbers from memory):
 //   - R. E. Kalman, "A new approach to linear filtering and prediction
 //     problems", Trans. ASME J. Basic Engineering 82(1):35–45, 1960.
 //   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications

@@ -29,7 +29,8 @@ func scalarModel(f, q, h, r float64) mot.Model {
 // cvModel is the 1-D constant-velocity model with discrete white-noise
 // acceleration: F = [[1,T],[0,1]], Q = σv²·Γ·Γᵀ with Γ = [T²/2, T]ᵀ,
 // H = [1, 0], R = σw². Source: Bar-Shalom, Li, Kirubarajan, "Estimation
-// with Applications to Tracking and Navigation", 2001, §6.3.2 (DWNA model).
+// with Applications to Tracking and Navigation", 2001, §6.3.2 (DWNA model;
+// section number from memory).
 func cvModel(T, sv2, sw2 float64) mot.Model {
 	g0, g1 := T*T/2, T
 	return mot.Model{
@@ -60,7 +61,8 @@ func step(t *testing.T, f *Filter, x, p, z []float64) (prior, gain []float64, re
 // TestRandomConstant reproduces the variance and gain sequence of the random
 // constant example: G. Welch, G. Bishop, "An Introduction to the Kalman
 // Filter", TR 95-041, UNC Chapel Hill, §3 "Estimating a random constant"
-// (A = 1, H = 1, Q = 1e-5, R = 0.1², x̂₀ = 0, P₀ = 1). The measurements of
+// (A = 1, H = 1, Q = 1e-5, R = 0.1², x̂₀ = 0, P₀ = 1; the setup is from
+// memory, as CHECK-VALUES §7.1 flags it). The measurements of
 // the report are not published; the variance and gain do not depend on
 // them. Expected values: CHECK-VALUES §7.1 (numpy 1.24.2), steady state from
 // the closed-form Riccati fixed point (§7.3).
@@ -206,7 +208,9 @@ func TestRandomWalkSteadyState(t *testing.T) {
 // steady state and compares the gain with the α–β closed form in the
 // tracking index λ = σv·T²/σw: α = −(λ² + 8λ − (λ + 4)√(λ² + 8λ))/8,
 // β = (λ² + 4λ − λ√(λ² + 8λ))/4, K = [α, β/T] (Kalata 1984, above; also
-// Bar-Shalom, Li, Kirubarajan 2001, §6.5.3). The steady covariances are
+// Bar-Shalom, Li, Kirubarajan 2001, §6.5.3; formulas and section from
+// memory, as CHECK-VALUES §7.4 flags them, and confirmed here by the
+// independently computed steady covariances). The steady covariances are
 // CHECK-VALUES §7.4 (scipy 1.10.1 solve_discrete_are); λ = 1 is the exact
 // rational fixed point checked by hand there.
 func TestAlphaBetaSteadyState(t *testing.T) {

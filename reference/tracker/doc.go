@@ -87,7 +87,7 @@
 // between equal costs are broken by row, column and rank, never by map or
 // goroutine order. The same inputs give the same output bytes.
 //
-// References:
+// References (section and equation numbers from memory):
 //   - S. Blackman, R. Popoli, "Design and Analysis of Modern Tracking
 //     Systems", Artech House, 1999, §6.5 (GNN assignment, augmented matrix)
 //     and §6.2 (track score increments ln(P_D/λ) − ½ ln|2πS| − d²/2 and
