@@ -152,3 +152,32 @@ func TestAlignRunAnchored(t *testing.T) {
 		t.Errorf("the whole-run pairing no longer swaps the names (%v): this test no longer shows why anchoring matters", whole.Names)
 	}
 }
+
+// TestStartedFrom: a track paired with one object whose first estimate is
+// another object's prior updated with the tracker's detection is found to
+// have started from that other object.
+func TestStartedFrom(t *testing.T) {
+	model := mot.Model{StateDim: 1, MeasDim: 1, Interval: 1, F: mot.Identity(1), Q: mot.NewMat(1, 1),
+		H: mot.Identity(1), R: mot.Identity(1), PD: 0.9, GateProb: 0.999}
+	f, err := kalman.New(model)
+	if err != nil {
+		t.Fatal(err)
+	}
+	one := func(v float64) mot.Mat { return mot.Mat{Rows: 1, Cols: 1, Data: []float64{v}} }
+	objs := map[string]mot.Object{
+		"skiff": {ID: "skiff", Mean: []float64{0}, Cov: one(4), Appear: 2},
+		"barge": {ID: "barge", Mean: []float64{10}, Cov: one(4), Appear: 2},
+	}
+	d := &tracker.Detail{Objects: []tracker.ObjectDetail{{Object: "skiff"}, {Object: "barge"}}}
+	scan := mot.Scan{Step: 2, Detections: []mot.Detection{{ID: 4, Z: []float64{15}}}}
+	// barge's prior updated with z = 15: 10 + 4/5·5 = 14, P = 0.8 (the
+	// scalar closed form of TestUpdateWithScalar).
+	est := mot.Estimate{Track: "t1", Mean: []float64{14}, Cov: one(0.8), Detection: 4, HasDetection: true}
+	if got := startedFrom(f, compare.Float64Port(), 2, est, d, objs, "skiff", scan); got != "barge" {
+		t.Errorf("startedFrom = %q, want barge", got)
+	}
+	est.Mean[0] = 13
+	if got := startedFrom(f, compare.Float64Port(), 2, est, d, objs, "skiff", scan); got != "" {
+		t.Errorf("startedFrom of an estimate no prior explains = %q, want none", got)
+	}
+}

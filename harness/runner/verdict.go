@@ -360,7 +360,7 @@ func (s *settings) checkConformance(j *job) result.Check {
 		}
 		v := newView(&dd, f, j.names)
 		var changed []string
-		var estDivs []result.Divergence
+		var estDivs, idDivs []result.Divergence
 		for _, od := range dd.Objects {
 			i, ok := v.byObj[od.Object]
 			if !ok {
@@ -378,10 +378,25 @@ func (s *settings) checkConformance(j *job) result.Check {
 				}
 			}
 			r := compareEstimate(j.sc.profile, k, est, od.Object, mean, cov)
-			if !r.OK() {
-				estDivs = append(estDivs, estimateDivergence(k, od.Object, r, "one step from the tracker's own previous estimate, the update differs"))
-				b.diffs(r.Diffs)
+			if r.OK() {
+				continue
 			}
+			if appear[od.Object].Appear == k {
+				if other := startedFrom(filt, j.sc.profile, k, est, &dd, appear, od.Object, j.run.Scans[k]); other != "" {
+					// Paired over the run with od.Object, but started from
+					// the prior of another object appearing at this step.
+					div := result.Divergence{Step: k, Kind: "identity", Objects: []string{od.Object, other},
+						Message: fmt.Sprintf("track %s starts from the prior of object %s but follows object %s over the run", est.Track, other, od.Object)}
+					if isTie(dd.Margin, j.sc.tie) {
+						b.tie(div)
+					} else {
+						idDivs = append(idDivs, div)
+					}
+					continue
+				}
+			}
+			estDivs = append(estDivs, estimateDivergence(k, od.Object, r, "one step from the tracker's own previous estimate, the update differs"))
+			b.diffs(r.Diffs)
 		}
 		// An association fault is named before the estimate faults of the
 		// same step.
@@ -393,7 +408,7 @@ func (s *settings) checkConformance(j *job) result.Check {
 				b.fail(div)
 			}
 		}
-		for _, d := range estDivs {
+		for _, d := range append(idDivs, estDivs...) {
 			b.fail(d)
 		}
 	}
@@ -474,4 +489,29 @@ func (s *settings) checkIdentity(j *job, opts compare.Options) result.Check {
 		summary += fmt.Sprintf("; %d track-steps follow no reference track within %g m", lone, opts.Cutoff)
 	}
 	return b.done(summary)
+}
+
+// startedFrom returns the object, other than paired, that appears at step k
+// and whose prior, updated with the detection the tracker chose, gives the
+// tracker's estimate within the profile; "" when there is none.
+func startedFrom(f *kalman.Filter, p compare.Profile, k int, est mot.Estimate, d *tracker.Detail, objs map[string]mot.Object, paired string, scan mot.Scan) string {
+	for _, od := range d.Objects {
+		o := objs[od.Object]
+		if od.Object == paired || o.Appear != k {
+			continue
+		}
+		det := est.Detection
+		if !est.HasDetection {
+			det = od.Detection
+		}
+		prior := tracker.ObjectDetail{Object: od.Object, PredMean: o.Mean, PredCov: o.Cov}
+		mean, cov, err := updateWith(f, prior, det, scan)
+		if err != nil {
+			continue
+		}
+		if r := compareEstimate(p, k, est, od.Object, mean, cov); r.OK() {
+			return od.Object
+		}
+	}
+	return ""
 }
