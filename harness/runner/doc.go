@@ -51,7 +51,10 @@
 //     detection it chose. A fault is thus placed at one step and told apart
 //     as an association or an estimation fault, without the cascade that
 //     follows a first divergence; a tie resolved the other way passes, as
-//     the next step restarts from the tracker's state.
+//     the next step restarts from the tracker's state. At an object's first
+//     step, a track whose estimate is instead another appearing object's
+//     prior updated with the tracker's detection is reported as an identity
+//     divergence (the track started as one object and follows another).
 //   - identity: compare.Follow matches tracks step by step; a track that
 //     changes object, or an object that changes track, is a divergence of
 //     kind "identity".
