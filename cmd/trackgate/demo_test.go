@@ -31,11 +31,15 @@ func TestDemoChild(t *testing.T) {
 // extra prepended to the arguments the demo asks for.
 func childTracker(t *testing.T, extra ...string) {
 	t.Helper()
+	exe, err := os.Executable()
+	if err != nil {
+		t.Fatal(err)
+	}
 	old := demoTracker
 	t.Cleanup(func() { demoTracker = old })
 	demoTracker = func(args ...string) ([]string, map[string]string, error) {
 		words := append(append([]string{"reference"}, extra...), args...)
-		return []string{os.Args[0], "-test.run=^TestDemoChild$"},
+		return []string{exe, "-test.run=^TestDemoChild$"},
 			map[string]string{demoChildEnv: strings.Join(words, " "), "GORACE": "atexit_sleep_ms=0"}, nil
 	}
 }
@@ -47,12 +51,14 @@ func runDemoArgs(t *testing.T, args ...string) (int, string, string) {
 	return code, out.String(), errb.String()
 }
 
-// TestDemo runs the demo (one run per scenario) and checks both verdicts,
-// the exit status and every file it promises.
+// TestDemo runs the demo (one run per scenario) from an empty folder with
+// no other setup and checks both verdicts, the exit status and every file
+// it promises.
 func TestDemo(t *testing.T) {
 	childTracker(t)
-	dir := filepath.Join(t.TempDir(), "out")
-	code, out, errs := runDemoArgs(t, "-o", dir, "-runs", "1")
+	t.Chdir(t.TempDir())
+	dir := "trackgate-demo" // the default -o
+	code, out, errs := runDemoArgs(t, "-runs", "1")
 	if code != exitPass {
 		t.Fatalf("demo exit %d, want 0\nstdout:\n%s\nstderr:\n%s", code, out, errs)
 	}
