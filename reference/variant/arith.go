@@ -14,7 +14,7 @@ import (
 // each product are what the resum and fused variants change; the algorithm
 // around them (predictWith, updateWith) repeats the reference's operation
 // for operation, so with forward order and rounded products it gives the
-// reference's bits (TestForwardSumsAreTheReference).
+// reference's bits (TestPlainMachineIsTheReference).
 type sums struct {
 	add, sub func(s float64, a []float64, ia, sa int, b []float64, ib, sb, n int) float64
 }
