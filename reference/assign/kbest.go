@@ -196,7 +196,8 @@ func (r *ranker) constrain(nd *node) []float64 {
 // the child's optimum is cost(nd) plus the reduced length of an alternating
 // path that leaves row t by another column and enters column c_t from another
 // row, and those two edges are distinct with non-negative reduced costs
-// (the bound of Miller, Stone and Cox 1997, summed over both ends). A child whose bound is +Inf is
+// (after the bound of Miller, Stone and Cox 1997, whose details are from
+// memory; here summed over both ends). A child whose bound is +Inf is
 // infeasible and dropped.
 func (r *ranker) partition(nd *node) {
 	n := r.n

@@ -77,7 +77,8 @@ func Solve(cost []float64, rows, cols int) (rowToCol []int, total float64, err e
 // call. Both are nil when the last call failed or there was none.
 //
 // These are the conditions of LP duality for the assignment problem; see
-// Crouse (2016), Section II, and CHECK-VALUES §4.3 of the project notes.
+// CHECK-VALUES §4.3 of the project notes (the LP dual of the rectangular
+// assignment problem; common practice).
 func (w *Workspace) Duals() (rowDual, colDual []float64) {
 	if !w.valid {
 		return nil, nil
@@ -323,13 +324,15 @@ func (w *Workspace) augment(c []float64, nc, cur int) bool {
 	return true
 }
 
-// reduceColumns starts a square n×n problem with the column reduction and
-// reduction transfer of Jonker and Volgenant (1987, Section 4): each column
-// dual is its column minimum, the row holding that minimum takes the column
-// when still free, and each row so assigned then moves its slack to its row
-// dual, lowering its column's dual. Reduced costs stay non-negative and the
-// assigned pairs are tight, which is the precondition of augment. Rows left
-// free are assigned by augment. A column without a finite entry gets dual 0.
+// reduceColumns starts a square n×n problem with the column reduction of
+// Jonker and Volgenant (1987; details from memory): each column dual is its
+// column minimum, row duals are 0, and columns are visited from last to first,
+// each taken by the row holding its minimum when that row is still free.
+// Reduced costs stay non-negative and the assigned pairs are tight, which is
+// the precondition of augment; rows left free are assigned by augment. A
+// column without a finite entry gets dual 0. JV's reduction transfer, which
+// follows in the paper, made uniform random problems slower here (measured,
+// see BENCHMARKS.md) and is left out.
 func (w *Workspace) reduceColumns(c []float64, n int) {
 	inf := math.Inf(1)
 	v := w.v[:n]
@@ -393,8 +396,8 @@ func (w *Workspace) reduceRows(c []float64, nr, nc int) {
 // scanRow relaxes the unsettled columns rem through row i, whose entries
 // are row, at path cost base + row[j] − v[j], and returns the smallest path
 // cost among them and its position in rem (−1 when rem is empty). On ties it
-// prefers a free column, which Crouse (2016) and scipy's implementation note
-// matters for small integer costs. It is kept apart from augment so that the
+// prefers a free column, which scipy's implementation of Crouse's method
+// notes matters for small integer costs (CHECK-VALUES §4.3). It is kept apart from augment so that the
 // loop's few values stay in registers.
 func scanRow(row, v, spc []float64, path, row4col, rem []int, base float64, i int) (float64, int) {
 	n := len(row)

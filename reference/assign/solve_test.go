@@ -150,7 +150,7 @@ func TestDualsA1(t *testing.T) {
 // checkCertificate verifies LP duality for the assignment problem:
 // feasibility of the duals, complementary slackness, and equal objective
 // values (strong duality). See D. F. Crouse, "On implementing 2D rectangular
-// assignment algorithms", IEEE TAES 52(4), 2016, Section II, and
+// assignment algorithms", IEEE TAES 52(4), 2016 (the dual it maintains), and
 // CHECK-VALUES §4.3 "Optimality certificate".
 func checkCertificate(t *testing.T, w *Workspace, cost []float64, rows, cols int, rowToCol []int, total float64, maximise bool) {
 	t.Helper()
