@@ -14,9 +14,13 @@
 // other is started once per run. Standard error is kept in a bounded ring
 // buffer (the last 64 KiB by default).
 //
-// Two timeouts bound every run: one per reply (the time from sending a
-// message to the complete reply line) and one for the whole run, on top of
-// the caller's context.
+// Timeouts bound every run: one per reply (the time from sending a
+// message to the complete reply line; Config.StartTimeout for the ready
+// reply to a start message, Config.ReplyTimeout for the reply to a scan)
+// and one for the whole run, on top of the caller's context. A tracker
+// ended by the harness (after a timeout, or when it stays after its input
+// is closed) is never blamed for its exit status: the harness's own reason
+// stands.
 //
 // # Batch mode
 //

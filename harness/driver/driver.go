@@ -3,7 +3,6 @@ package driver
 import (
 	"context"
 	"errors"
-	"io"
 	"os"
 	"strconv"
 	"sync"
@@ -29,8 +28,12 @@ type Config struct {
 	Dir string
 	// Batch selects batch mode (see the package documentation).
 	Batch bool
-	// ReplyTimeout bounds each reply (0 means 10 s).
+	// ReplyTimeout bounds each reply to a scan (0 means 10 s).
 	ReplyTimeout time.Duration
+	// StartTimeout bounds the ready reply to each start message, which
+	// may take longer than a scan's reply (a tracker loading its own
+	// models); 0 means ReplyTimeout.
+	StartTimeout time.Duration
 	// RunTimeout bounds each run (0 means 10 min).
 	RunTimeout time.Duration
 	// Grace is the time a tracker gets to exit after its input is closed,
@@ -51,6 +54,7 @@ func orDefault(d, def time.Duration) time.Duration {
 }
 
 func (c *Config) replyTimeout() time.Duration { return orDefault(c.ReplyTimeout, 10*time.Second) }
+func (c *Config) startTimeout() time.Duration { return orDefault(c.StartTimeout, c.replyTimeout()) }
 func (c *Config) runTimeout() time.Duration   { return orDefault(c.RunTimeout, 10*time.Minute) }
 func (c *Config) grace() time.Duration        { return orDefault(c.Grace, 2*time.Second) }
 func (c *Config) stderrMax() int {
@@ -165,6 +169,10 @@ func RunMany(ctx context.Context, cfg Config, jobs []Job, workers int) []Result 
 // onReply, when set (by benchmarks), is called after each reply has been
 // read and checked in a conversation.
 var onReply func()
+
+// onRunEnd, when set (by tests), is called in a conversation after the stop
+// message of job has been written, with the run's context.
+var onRunEnd func(job *Job, runCtx context.Context)
 
 // peer is a tracker process in conversation.
 type peer struct {
@@ -375,9 +383,11 @@ func runConversation(ctx context.Context, cfg *Config, s *peer, job *Job) (Resul
 	s.mu.Unlock()
 	stopHalt := context.AfterFunc(runCtx, s.halt)
 	runDeadline, _ := runCtx.Deadline()
-	replyTimeout := cfg.replyTimeout()
+	// waiting is the timeout of the exchange under way: StartTimeout for
+	// the ready reply, ReplyTimeout for the replies to scans.
+	waiting := cfg.startTimeout()
 	arm := func() {
-		t := time.Now().Add(replyTimeout)
+		t := time.Now().Add(waiting)
 		if runDeadline.Before(t) {
 			t = runDeadline
 		}
@@ -409,7 +419,7 @@ func runConversation(ctx context.Context, cfg *Config, s *peer, job *Job) (Resul
 			if runCtx.Err() != nil || !time.Now().Before(runDeadline) {
 				return &Fault{Class: Hang, Step: step, Line: line, Detail: "run timeout of " + cfg.runTimeout().String() + " passed"}
 			}
-			return &Fault{Class: Hang, Step: step, Line: line, Detail: "no reply within " + replyTimeout.String()}
+			return &Fault{Class: Hang, Step: step, Line: line, Detail: "no reply within " + waiting.String()}
 		}
 		// End of output or a broken pipe: did the tracker die?
 		if s.p.waitExit(cfg.grace()) {
@@ -462,6 +472,7 @@ func runConversation(ctx context.Context, cfg *Config, s *peer, job *Job) (Resul
 		}
 		s.ready = x.res.Tracker
 	}
+	waiting = cfg.replyTimeout()
 	for i := range job.Run.Scans {
 		arm()
 		if err := s.enc.Scan(job.Run.Scans[i]); err != nil {
@@ -488,11 +499,25 @@ func runConversation(ctx context.Context, cfg *Config, s *peer, job *Job) (Resul
 		return fail(ioFault(err, len(job.Run.Scans)))
 	}
 	x.record(ToTracker, s.enc.Last())
-	stopHalt()
+	if onRunEnd != nil {
+		onRunEnd(job, runCtx)
+	}
+	// When the run deadline fired after the last reply, stopHalt returns
+	// false and halt may still be running: it could mark the next run on
+	// this process halted and set past deadlines after that run has
+	// cleared them, a spurious hang. Such a process is not reused.
+	halting := !stopHalt()
 	s.deadline(time.Time{})
-	if s.ready.ManyRuns {
+	if s.ready.ManyRuns && !halting {
 		x.res.Stderr = s.p.stderr.since(mark)
 		return x.res, s
+	}
+	if s.ready.ManyRuns {
+		// The run itself is complete; its process just cannot serve the
+		// next one, and its exit is not the run's concern.
+		s.kill()
+		x.res.Stderr = s.p.stderr.since(mark)
+		return x.res, nil
 	}
 	if f := s.close(); f != nil {
 		f.Step = len(job.Run.Scans)
@@ -502,5 +527,3 @@ func runConversation(ctx context.Context, cfg *Config, s *peer, job *Job) (Resul
 	x.res.Stderr = s.p.stderr.since(mark)
 	return x.res, nil
 }
-
-var _ = io.EOF

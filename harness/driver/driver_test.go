@@ -132,6 +132,9 @@ func TestFaults(t *testing.T) {
 		{mode: "signal-mid", class: Crashed, step: 1, detail: "killed"},
 		{mode: "hang", class: Hang, step: 1, detail: "no reply within", stderr: "thinking hard"},
 		{mode: "ignore-term", class: Hang, step: 1, detail: "no reply within"},
+		// Our SIGTERM after the reply timeout makes it exit with status 3:
+		// the hang is the fault, not the status.
+		{mode: "term-exits-3", class: Hang, step: 1, detail: "no reply within", stderr: "caught SIGTERM"},
 		{mode: "grandchild", class: Hang, step: 1, stderr: "stubborn grandchild running"},
 		{mode: "slow", class: Hang, detail: "run timeout", cfg: func(c *Config) { c.RunTimeout = 250 * time.Millisecond; c.ReplyTimeout = 5 * time.Second }},
 		{mode: "garbage", class: BadJSON, step: 1, line: 3},
@@ -479,4 +482,80 @@ func TestDocumentExample(t *testing.T) {
 	if len(res.Frames) != 2 || res.Frames[1].Tracks[0].Track != "1" || res.Frames[1].Tracks[0].Detection != mot.NoDetection {
 		t.Errorf("frames = %+v", res.Frames)
 	}
+}
+
+// TestEndedAtClose checks that a tracker that stays after its input is
+// closed, and answers the SIGTERM that ends it with status 3, passes: the
+// run was complete and ending it was our doing.
+func TestEndedAtClose(t *testing.T) {
+	res := Run(context.Background(), fakeConfig("linger-term-3"), warehouseJob(0, 3))
+	if res.Fault != nil {
+		t.Fatalf("fault %v, want a clean run", res.Fault)
+	}
+	if len(res.Frames) != 3 {
+		t.Errorf("%d frames, want 3", len(res.Frames))
+	}
+	if !strings.Contains(string(res.Stderr), "caught SIGTERM") {
+		t.Errorf("stderr %q: the tracker was not ended by SIGTERM, the test proves nothing", res.Stderr)
+	}
+	requireNoLeftovers(t, startedPids())
+}
+
+// TestStartTimeout checks that the ready reply is bounded by StartTimeout,
+// and by ReplyTimeout when StartTimeout is zero; the fake tracker takes
+// 500 ms to send ready.
+func TestStartTimeout(t *testing.T) {
+	tests := []struct {
+		name         string
+		reply, start time.Duration
+		detail       string // "" for a clean run
+	}{
+		{name: "zero start uses the reply timeout", reply: 200 * time.Millisecond, detail: "no reply within 200ms"},
+		{name: "longer start timeout", reply: 200 * time.Millisecond, start: 3 * time.Second},
+		{name: "shorter start timeout", reply: 3 * time.Second, start: 100 * time.Millisecond, detail: "no reply within 100ms"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			cfg := fakeConfig("slow-start")
+			cfg.ReplyTimeout, cfg.StartTimeout = tt.reply, tt.start
+			res := Run(context.Background(), cfg, warehouseJob(0, 3))
+			if tt.detail == "" {
+				if res.Fault != nil {
+					t.Fatalf("fault %v, want a clean run", res.Fault)
+				}
+				return
+			}
+			if f := res.Fault; f == nil || f.Class != Hang || f.Step != -1 || f.Detail != tt.detail {
+				t.Fatalf("fault %v, want a hang at step -1 with detail %q", f, tt.detail)
+			}
+		})
+	}
+	requireNoLeftovers(t, startedPids())
+}
+
+// TestLateRunDeadline checks that a tracker serving several runs is not
+// kept for the next run when the run deadline fires after the last reply
+// (the deadline's halt may still be under way then and could halt the
+// next run). The hook holds the first run after its stop message until its
+// deadline has passed, so stopHalt reports that halt was started.
+func TestLateRunDeadline(t *testing.T) {
+	cfg := fakeConfig("many")
+	cfg.RunTimeout = 1500 * time.Millisecond
+	onRunEnd = func(job *Job, runCtx context.Context) {
+		if job.Run.Index == 0 {
+			<-runCtx.Done()
+		}
+	}
+	defer func() { onRunEnd = nil }()
+	before := len(startedPids())
+	res := RunMany(context.Background(), cfg, []Job{warehouseJob(0, 3), warehouseJob(1, 3)}, 1)
+	for i, r := range res {
+		if r.Fault != nil {
+			t.Errorf("job %d: fault %v, want a clean run", i, r.Fault)
+		}
+	}
+	if started := len(startedPids()) - before; started != 2 {
+		t.Errorf("%d processes started, want 2: the first is not reused after its run deadline fired", started)
+	}
+	requireNoLeftovers(t, startedPids())
 }

@@ -76,11 +76,26 @@ func fakeTracker(mode string, args []string) {
 	if mode == "ignore-term" {
 		signal.Ignore(syscall.SIGTERM)
 	}
+	if mode == "term-exits-3" || mode == "linger-term-3" {
+		// A tracker with its own SIGTERM handler that exits non-zero.
+		term := make(chan os.Signal, 1)
+		signal.Notify(term, syscall.SIGTERM)
+		go func() {
+			<-term
+			fmt.Fprintln(os.Stderr, "caught SIGTERM, leaving with status 3")
+			os.Exit(3)
+		}()
+	}
 	for {
 		req, err := dec.ReadRequest()
 		if err == io.EOF {
 			if mode == "exit-after" {
 				os.Exit(5)
+			}
+			if mode == "linger-term-3" {
+				// Does not leave at the end of its input: it is ended
+				// by SIGTERM, which its handler answers with status 3.
+				time.Sleep(time.Hour)
 			}
 			return
 		}
@@ -98,6 +113,10 @@ func fakeTracker(mode string, args []string) {
 				raw(`{"type":"ready","protocol":2,"tracker":"fake","version":"1"}`)
 			case "silent":
 				os.Exit(0)
+			case "slow-start":
+				time.Sleep(500 * time.Millisecond)
+				enc.Ready(protocol.Ready{Name: "fake-slow-start", Version: "1", Covariance: true, Association: true})
+				w.Flush()
 			case "bench":
 				enc.Ready(protocol.Ready{Name: "fake-bench", Version: "1", Association: true})
 				w.Flush()
@@ -119,7 +138,7 @@ func fakeTracker(mode string, args []string) {
 				case "signal-mid":
 					syscall.Kill(os.Getpid(), syscall.SIGKILL)
 					time.Sleep(time.Hour)
-				case "hang", "ignore-term":
+				case "hang", "ignore-term", "term-exits-3":
 					fmt.Fprintln(os.Stderr, "thinking hard")
 					time.Sleep(time.Hour)
 				case "grandchild":

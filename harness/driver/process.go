@@ -158,7 +158,7 @@ func (p *proc) waitExit(d time.Duration) bool {
 // drained (bounded by a grace period, for a descendant that escaped the
 // group).
 func (p *proc) end(patient bool) {
-	if !patient || !p.waitExit(p.grace) {
+	if !p.done() && (!patient || !p.waitExit(p.grace)) {
 		p.killedByUs = true
 		syscall.Kill(-p.pid, syscall.SIGTERM)
 		if !p.waitExit(p.grace) {
@@ -181,9 +181,12 @@ func (p *proc) end(patient bool) {
 }
 
 // exitFault classifies how the process ended, or returns nil if it exited
-// with status 0 or was ended by us.
+// with status 0 or was ended by us. A process we ended is not blamed for
+// how it went, whatever its status: a tracker that catches SIGTERM and
+// exits non-zero would otherwise hide our own reason (a hang) behind an
+// exit status.
 func (p *proc) exitFault(step int) *Fault {
-	if !p.done() {
+	if !p.done() || p.killedByUs {
 		return nil
 	}
 	st := p.state
@@ -191,9 +194,6 @@ func (p *proc) exitFault(step int) *Fault {
 		return nil
 	}
 	if ws, ok := st.Sys().(syscall.WaitStatus); ok && ws.Signaled() {
-		if p.killedByUs {
-			return nil
-		}
 		return &Fault{Class: Crashed, Step: step, Signal: ws.Signal().String(),
 			Detail: "killed by signal " + ws.Signal().String()}
 	}
