@@ -15,6 +15,8 @@ import (
 	"go.yaml.in/yaml/v3"
 
 	"trackgate/harness/compare"
+	"trackgate/harness/golden"
+	"trackgate/harness/internal/yamlpos"
 )
 
 // walker collects errors while walking the YAML tree.
@@ -24,43 +26,15 @@ type walker struct {
 }
 
 func (w *walker) errAt(n *yaml.Node, p, format string, args ...any) {
-	e := &Error{File: w.file, Path: p, Msg: fmt.Sprintf(format, args...)}
-	if n != nil {
-		e.Line, e.Col = n.Line, n.Column
-	}
-	w.errs = append(w.errs, e)
+	w.errs = append(w.errs, yamlpos.At(w.file, n, p, format, args...))
 }
 
-func join(p, key string) string {
-	if p == "" {
-		return key
-	}
-	return p + "." + key
-}
-
-func index(p string, i int) string { return p + "[" + strconv.Itoa(i) + "]" }
-
-// describe names what a node holds, for "expected X, got Y" messages.
-func describe(n *yaml.Node) string {
-	switch n.Kind {
-	case yaml.MappingNode:
-		return "a mapping"
-	case yaml.SequenceNode:
-		return "a list"
-	case yaml.AliasNode:
-		return "an alias"
-	case yaml.ScalarNode:
-		if n.ShortTag() == "!!null" {
-			return "nothing (null)"
-		}
-		v := n.Value
-		if len(v) > 40 {
-			v = v[:40] + "…"
-		}
-		return strconv.Quote(v)
-	}
-	return "an unexpected node"
-}
+// The shared path and message helpers, under the names the walker uses.
+var (
+	join     = yamlpos.Join
+	index    = yamlpos.Index
+	describe = yamlpos.DescribeText
+)
 
 // mapping returns the values of a mapping node by key, reporting unknown
 // keys (with a suggestion), duplicate keys and non-string keys.
@@ -86,7 +60,7 @@ func (w *walker) mapping(n *yaml.Node, p string, known ...string) (map[string]*y
 		}
 		if !ok {
 			msg := fmt.Sprintf("unknown key %q; expected one of %s", k.Value, strings.Join(known, ", "))
-			if s := suggest(k.Value, known); s != "" {
+			if s := yamlpos.Suggest(k.Value, known); s != "" {
 				msg = fmt.Sprintf("unknown key %q; did you mean %q?", k.Value, s)
 			}
 			w.errAt(k, p, "%s", msg)
@@ -95,37 +69,6 @@ func (w *walker) mapping(n *yaml.Node, p string, known ...string) (map[string]*y
 		out[k.Value] = v
 	}
 	return out, true
-}
-
-func suggest(key string, known []string) string {
-	best, bestD := "", 3
-	for _, k := range known {
-		if d := distance(key, k); d < bestD {
-			best, bestD = k, d
-		}
-	}
-	return best
-}
-
-// distance is the Levenshtein edit distance (common practice).
-func distance(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			c := prev[j-1]
-			if a[i-1] != b[j-1] {
-				c++
-			}
-			cur[j] = min(c, prev[j]+1, cur[j-1]+1)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
 }
 
 func (w *walker) scalar(n *yaml.Node, p, want string, tags ...string) bool {
@@ -286,7 +229,7 @@ func Parse(name string, data []byte) (Config, error) {
 		}
 	}
 	if len(w.errs) > 0 {
-		return Config{}, w.errs.sorted()
+		return Config{}, w.errs.Sort()
 	}
 	return c, nil
 }
@@ -341,7 +284,7 @@ func (w *walker) tracker(n *yaml.Node, t *Tracker) {
 	}
 	if v := m["name"]; v != nil {
 		if s, ok := w.nonEmpty(v, join(p, "name"), "a tracker name"); ok {
-			if !validName(s) {
+			if !golden.ValidName(s) {
 				w.errAt(v, join(p, "name"), "expected a name of letters, digits, '.', '_' and '-' not starting with '.' or '-' (it names a golden folder), got %q", s)
 			} else {
 				t.Name = s
@@ -407,19 +350,6 @@ func (w *walker) tracker(n *yaml.Node, t *Tracker) {
 	if v := m["batch"]; v != nil {
 		t.Batch, _ = w.boolean(v, join(p, "batch"))
 	}
-}
-
-func validName(s string) bool {
-	if len(s) == 0 || len(s) > 128 || s[0] == '.' || s[0] == '-' {
-		return false
-	}
-	for i := 0; i < len(s); i++ {
-		c := s[i]
-		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '.' || c == '_' || c == '-') {
-			return false
-		}
-	}
-	return true
 }
 
 func (w *walker) tolerance(n *yaml.Node, p string, t *Tolerance) {

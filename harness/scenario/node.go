@@ -3,11 +3,11 @@ package scenario
 import (
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
 
 	"go.yaml.in/yaml/v3"
 
+	"trackgate/harness/internal/yamlpos"
 	"trackgate/harness/mot"
 )
 
@@ -18,51 +18,16 @@ type walker struct {
 }
 
 func (w *walker) errAt(n *yaml.Node, path, format string, args ...any) {
-	e := &Error{File: w.file, Path: path, Msg: fmt.Sprintf(format, args...)}
-	if n != nil {
-		e.Line, e.Col = n.Line, n.Column
-	}
-	w.errs = append(w.errs, e)
+	w.errs = append(w.errs, yamlpos.At(w.file, n, path, format, args...))
 }
 
-func join(path, key string) string {
-	if path == "" {
-		return key
-	}
-	return path + "." + key
-}
-
-func index(path string, i int) string { return path + "[" + strconv.Itoa(i) + "]" }
-
-// describe names what a node is, for "found ..." in messages.
-func describe(n *yaml.Node) string {
-	switch n.Kind {
-	case yaml.MappingNode:
-		return "a mapping"
-	case yaml.SequenceNode:
-		return "a list"
-	case yaml.AliasNode:
-		return "an alias"
-	case yaml.ScalarNode:
-		switch n.ShortTag() {
-		case "!!null":
-			return "nothing"
-		case "!!int", "!!float":
-			return "the number " + n.Value
-		case "!!bool":
-			return n.Value
-		case "!!str":
-			v := n.Value
-			if len(v) > 40 {
-				v = v[:37] + "..."
-			}
-			return strconv.Quote(v)
-		default:
-			return "a value tagged " + n.ShortTag()
-		}
-	}
-	return "an unexpected node"
-}
+// join, index and describe are the shared path and message helpers under
+// the names the walker uses.
+var (
+	join     = yamlpos.Join
+	index    = yamlpos.Index
+	describe = yamlpos.Describe
+)
 
 // noAlias reports an alias as an error. Aliases are refused everywhere so
 // that the tree is never expanded.
@@ -111,40 +76,6 @@ func (w *walker) reportAliases(root *yaml.Node) {
 	}
 }
 
-// suggest returns the known key closest to key when it is a likely
-// misspelling (at most two edits), or "".
-func suggest(key string, known []string) string {
-	best, bestD := "", 3
-	for _, k := range known {
-		if d := editDistance(key, k); d < bestD {
-			best, bestD = k, d
-		}
-	}
-	return best
-}
-
-// editDistance is the Levenshtein distance between a and b, counted in
-// bytes (keys are ASCII).
-func editDistance(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			sub := prev[j-1]
-			if a[i-1] != b[j-1] {
-				sub++
-			}
-			cur[j] = min(sub, prev[j]+1, cur[j-1]+1)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
-}
-
 // fields is a checked mapping: the value and key node of each known key.
 type fields struct {
 	node *yaml.Node
@@ -175,7 +106,7 @@ func (w *walker) mapping(n *yaml.Node, path string, known []string) (*fields, bo
 		}
 		kp := join(path, k.Value)
 		if !contains(known, k.Value) {
-			if near := suggest(k.Value, known); near != "" {
+			if near := yamlpos.Suggest(k.Value, known); near != "" {
 				w.errAt(k, kp, "unknown key; did you mean %s? expected one of %s", near, strings.Join(known, ", "))
 			} else {
 				w.errAt(k, kp, "unknown key; expected one of %s", strings.Join(known, ", "))
