@@ -336,3 +336,20 @@ func TestBoundsBelowOptimum(t *testing.T) {
 		}
 	}
 }
+
+// TestKBestDeterministic: the same input gives the same ranking, ties
+// included, call after call.
+func TestKBestDeterministic(t *testing.T) {
+	rng := testRand(t, 9)
+	c := randomMatrix(rng, 7, 9, true, 0.2)
+	a, errA := KBest(c, 7, 9, 50)
+	b, errB := KBest(c, 7, 9, 50)
+	if errA != nil || errB != nil || len(a) != len(b) {
+		t.Fatalf("KBest twice: %d, %d hypotheses, errors %v, %v", len(a), len(b), errA, errB)
+	}
+	for i := range a {
+		if a[i].Cost != b[i].Cost || fmt.Sprint(a[i].RowToCol) != fmt.Sprint(b[i].RowToCol) {
+			t.Fatalf("rank %d differs: %v and %v", i, a[i], b[i])
+		}
+	}
+}
