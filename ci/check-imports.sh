@@ -7,6 +7,10 @@
 #   tests also:    github.com/stretchr/testify/..., github.com/google/go-cmp/...,
 #                  github.com/santhosh-tekuri/jsonschema/...
 #
+# The YAML module is further confined to the readers of YAML files: only
+# trackgate/harness/internal/yamlpos, trackgate/harness/scenario and
+# trackgate/harness/config (and their tests) may import go.yaml.in/yaml/v3.
+#
 # Direct imports are checked (go list .Imports, .TestImports, .XTestImports),
 # since the transitive dependencies of an allowed module are that module's
 # business. The standard library is whatever `go list std` lists for the
@@ -25,6 +29,8 @@ trap 'rm -f "$std"' EXIT
 go list std >"$std" || exit 2
 
 allowed_code='^(trackgate(/|$)|gonum\.org/v1/gonum(/|$)|go\.yaml\.in/yaml/v3(/|$))'
+yaml_module='^go\.yaml\.in/yaml/v3(/|$)'
+yaml_users='^trackgate/harness/(internal/yamlpos|scenario|config)$'
 allowed_test='^(github\.com/stretchr/testify(/|$)|github\.com/google/go-cmp(/|$)|github\.com/santhosh-tekuri/jsonschema(/|$))'
 
 # One line per import: "<kind> <package> <import>".
@@ -38,6 +44,11 @@ while read -r kind pkg imp; do
 	[ -z "${imp:-}" ] && continue
 	[ "$imp" = "C" ] && { echo "$pkg imports C (cgo is not allowed)"; bad=1; continue; }
 	grep -qxF -- "$imp" "$std" && continue
+	if [[ $imp =~ $yaml_module ]] && ! [[ $pkg =~ $yaml_users ]]; then
+		echo "$pkg imports $imp; only harness/internal/yamlpos, harness/scenario and harness/config may read YAML"
+		bad=1
+		continue
+	fi
 	[[ $imp =~ $allowed_code ]] && continue
 	if [ "$kind" = test ] && [[ $imp =~ $allowed_test ]]; then
 		continue

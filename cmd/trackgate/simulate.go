@@ -5,9 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
-	"path/filepath"
 
+	"trackgate/harness/golden"
 	"trackgate/harness/scenario"
 	"trackgate/harness/sim"
 )
@@ -76,37 +75,12 @@ func runSimulate(args []string, stdout, stderr io.Writer) int {
 		}
 		return exitPass
 	}
-	if err := writeFileAtomic(*outPath, buf.Bytes()); err != nil {
+	// golden.WriteFile writes a temporary file, syncs it, renames it over
+	// the target and syncs the folder, so readers see the old file or the
+	// whole new one.
+	write := func(w io.Writer) error { _, err := w.Write(buf.Bytes()); return err }
+	if err := golden.WriteFile(*outPath, write); err != nil {
 		return fail("-o: %v", err)
 	}
 	return exitPass
-}
-
-// writeFileAtomic writes data to a temporary file next to path, syncs it
-// and renames it over path, so that readers see the old file or the whole
-// new one, never a part. The temporary file is removed on failure.
-func writeFileAtomic(path string, data []byte) (err error) {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	defer func() {
-		if err != nil {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if _, err = tmp.Write(data); err != nil {
-		return err
-	}
-	if err = tmp.Chmod(0o644); err != nil {
-		return err
-	}
-	if err = tmp.Sync(); err != nil {
-		return err
-	}
-	if err = tmp.Close(); err != nil {
-		return err
-	}
-	return os.Rename(tmp.Name(), path)
 }
