@@ -15,11 +15,20 @@
 // infinity. The relative term uses M = max(|want|, |got|), so the verdict is
 // symmetric in want and got: when a port is certified against a reference
 // neither side is privileged, and swapping them must not change the answer.
-// This is Knuth's "approximately equal" (≈) relation. The min-based form
-// (Knuth's "essentially equal", ~) is also symmetric but stricter where one
-// value is much smaller than the other; with max, two neighbouring normal
-// floats always agree once Rel ≥ 2⁻⁵², which makes Rel read as a number of
-// ULPs of the larger value.
+// This is a magnitude-scaled variant of Knuth's "approximately equal" (≈)
+// relation (D. E. Knuth, The Art of Computer Programming, vol. 2,
+// Seminumerical Algorithms, 3rd ed., 1998, §4.2.2). Knuth scales ε by
+// b^max(e_u, e_v), a power of the radix b set by the larger floating-point
+// exponent, so his bound is constant across a binade and jumps by a factor
+// b at each power of b; with normalised fractions in [1/b, 1) that power
+// lies in (M, b·M], so Knuth's bound is up to b (= 2 here) times looser
+// than Rel·M for the same ε. This package scales by the magnitude M
+// itself, which is continuous in the values and does not depend on how
+// they are represented. Knuth's "essentially equal" (~) takes the smaller
+// exponent instead; a min-based form is also symmetric but stricter where
+// one value is much smaller than the other. With max, two neighbouring
+// normal floats always agree once Rel ≥ 2⁻⁵², which makes Rel read as a
+// number of ULPs of the larger value.
 //
 // The ULP distance of a and b counts the float64 values strictly above
 // min(a, b) up to and including max(a, b): adjacent floats are 1 apart, +0 and

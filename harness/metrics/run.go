@@ -53,7 +53,8 @@ func (w *Workspace) GOSPARun(truth []mot.Truth, frames []mot.Frame, p Params) ([
 // with (zero means 2).
 //
 // Reference: García-Fernández, Rahmathullah, Svensson (2020), and the
-// FUSION 2017 paper, Section IV: both averages are metrics on random finite
+// FUSION 2017 paper (Rahmathullah, García-Fernández, Svensson), Section IV
+// (section number from memory): both averages are metrics on random finite
 // sets.
 func Average(gs []GOSPA, p Params) (mean, pmean float64) {
 	if len(gs) == 0 {
