@@ -4,26 +4,32 @@ import (
 	"fmt"
 	"io"
 
+	"trackgate/harness/config"
 	"trackgate/harness/result"
+	"trackgate/harness/runner"
 	"trackgate/harness/shard"
 )
 
 func init() {
 	register(&command{
 		name:    "merge",
-		usage:   "merge -o OUT.json SHARD.json... [-verify-split]",
-		summary: "Combine the result files of shards into the result of the whole suite; the exit code follows the merged status.",
+		usage:   "merge -o OUT.json [--config FILE] SHARD.json... [-verify-split]",
+		summary: "Combine the result files of shards into the result of the whole suite, judging the gates again on the merged runs; the exit code follows the merged status.",
 		run:     runMerge,
 	})
 }
 
-// runMerge reads shard results, merges them with result.Merge and writes
-// the merged result atomically. Any unreadable file or failed merge check
-// exits 2; otherwise the exit code is the merged result's (statusExit).
+// runMerge reads shard results, merges them with result.Merge, summarises
+// and gates every scenario whose runs are now all present with
+// runner.Judge (the gates of the project file, which should be the one the
+// shards ran with), and writes the merged result atomically. Any unreadable
+// file or failed merge check exits 2; otherwise the exit code is the merged
+// result's (statusExit).
 func runMerge(args []string, stdout, stderr io.Writer) int {
 	c := commands["merge"]
 	fs := newFlags(c, stderr)
 	out := fs.String("o", "", "write the merged result to this file (replaced atomically); required")
+	configFile := fs.String("config", config.FileName, "the project file whose gates are judged on the merged runs; a missing file means no gates")
 	verify := fs.Bool("verify-split", false, "also check that every run sits in the shard that trackgate's split (harness/shard) assigns it")
 	var files []string
 	for {
@@ -61,9 +67,16 @@ func runMerge(args []string, stdout, stderr io.Writer) int {
 			}
 		}
 	}
+	cfg, err := config.Load(*configFile)
+	if err != nil {
+		return fail("--config: %v", err)
+	}
 	merged, err := result.Merge(suites...)
 	if err != nil {
 		return fail("%v (files in order: %v)", err, files)
+	}
+	if err := runner.Judge(merged, cfg); err != nil {
+		return fail("%s: %v", *configFile, err)
 	}
 	if err := result.Write(*out, merged); err != nil {
 		return fail("-o: %v", err)

@@ -141,6 +141,32 @@ type Run struct {
 	// It is the only field that differs between identical runs; leave it
 	// zero where byte-identical results are wanted.
 	Seconds float64 `json:"seconds,omitempty"`
+	// Values are the tracker's whole-run metric values on this run, by
+	// metric name in alphabetical order: what the scenario's gates are
+	// judged on. ReferenceValues are the reference tracker's on the same
+	// run (the same seed) and BlessedValues the tracker's blessed ones, when
+	// its golden metrics were read; they are the paired gates' baselines.
+	// Carrying them in the run lets the gates be judged again after the
+	// runs of a scenario were spread over shards and merged.
+	Values          []Value `json:"values,omitempty"`
+	ReferenceValues []Value `json:"reference_values,omitempty"`
+	BlessedValues   []Value `json:"blessed_values,omitempty"`
+}
+
+// Value is one whole-run metric value ("mean_gospa", "id_switches" ...).
+type Value struct {
+	Metric string  `json:"metric"`
+	Value  float64 `json:"value"`
+}
+
+// Lookup returns the value of the named metric in vs.
+func Lookup(vs []Value, metric string) (float64, bool) {
+	for _, v := range vs {
+		if v.Metric == metric {
+			return v.Value, true
+		}
+	}
+	return 0, false
 }
 
 // Check is one comparison made on a run.
@@ -215,6 +241,11 @@ type RunMetrics struct {
 	PositionRMSE    float64 `json:"position_rmse"`
 	MeanNIS         float64 `json:"mean_nis,omitempty"`
 	NEESStepsInBand float64 `json:"nees_steps_in_band,omitempty"`
+	// NEESSamples holds, for every step of the run (none left out), the
+	// NEES of each track matched to an object that reports a covariance,
+	// in frame order; a step without one has an empty list. The
+	// scenario's consistency band is judged on these pooled over runs.
+	NEESSamples [][]float64 `json:"nees_samples,omitempty"`
 }
 
 // Metrics summarises a scenario's metrics over its runs.

@@ -241,6 +241,13 @@ func (s *settings) judge(j *job) {
 	}
 	if j.score != nil {
 		r.Metrics = j.score.metrics
+		r.Values = valuesOf(j.score.whole)
+		if j.refSc != nil && j.refSc.err == nil {
+			r.ReferenceValues = valuesOf(j.refSc.whole)
+		}
+		if j.blessed != nil {
+			r.BlessedValues = valuesOf(j.blessed)
+		}
 	}
 	if s.AllTraces || j.index == 0 || r.Status.Rank() > result.Tie.Rank() {
 		r.Trace = s.trace(j)
@@ -285,19 +292,13 @@ func (s *settings) assemble(scens []*scen) *result.Suite {
 				suite.Tracker.Name, suite.Tracker.Version = j.res.Tracker.Name, j.res.Tracker.Version
 			}
 		}
-		if len(sc.jobs) == sc.planned && sc.planned > 0 {
-			out.Metrics = s.aggregate(sc)
-			out.Gates = s.gates(sc)
-			for _, g := range out.Gates {
-				// A gate that could not be judged (too few runs) is
-				// reported but does not mark the scenario skipped.
-				if g.Status.Rank() > result.Skip.Rank() {
-					out.Status = result.Worst(out.Status, g.Status)
-				}
-			}
-		}
 		suite.Scenarios = append(suite.Scenarios, out)
 		suite.Status = result.Worst(suite.Status, out.Status)
+	}
+	// The gates were checked by resolve, so Judge cannot fail here.
+	if err := Judge(suite, s.cfg); err != nil {
+		suite.Notes = append(suite.Notes, err.Error())
+		suite.Status = result.Worst(suite.Status, result.Error)
 	}
 	return suite
 }

@@ -2,7 +2,6 @@ package runner
 
 import (
 	"fmt"
-	"math"
 	"sort"
 
 	"trackgate/harness/config"
@@ -108,6 +107,7 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, c float64, n int) *r
 	}
 	m.IDSwitches, m.TrackBreaks, m.FalseTracks = sc.Switches, sc.Breaks, sc.FalseTracks
 	m.MissedObjects, m.PositionRMSE = sc.MissedSteps, sc.PositionRMSE
+	m.NEESSamples = neesSamples(sc.NEES, steps)
 	rs := &runScore{metrics: m, nees: sc.NEES}
 	rs.whole = map[string]float64{
 		MetricMeanGOSPA: m.MeanGOSPA, MetricPositionRMSE: m.PositionRMSE,
@@ -153,107 +153,6 @@ func (s *settings) scoreJob(j *job) {
 	}
 }
 
-// aggregate summarises a scenario's run metrics.
-func (s *settings) aggregate(sc *scen) *result.Metrics {
-	out := &result.Metrics{}
-	var gsum [][]float64
-	var nees [][]float64
-	rmse2, covered := 0.0, 0
-	for _, j := range sc.jobs {
-		if j.score == nil {
-			continue
-		}
-		m := j.score.metrics
-		out.Runs++
-		out.MeanGOSPA += m.MeanGOSPA
-		out.IDSwitches += m.IDSwitches
-		out.FalseTracks += m.FalseTracks
-		rmse2 += m.PositionRMSE * m.PositionRMSE
-		covered++
-		for k, g := range m.GOSPA {
-			for len(gsum) <= k {
-				gsum = append(gsum, nil)
-			}
-			gsum[k] = append(gsum[k], g)
-		}
-		for k, v := range j.score.nees {
-			for len(nees) <= k {
-				nees = append(nees, nil)
-			}
-			nees[k] = append(nees[k], v...)
-		}
-	}
-	if out.Runs == 0 {
-		return nil
-	}
-	out.MeanGOSPA /= float64(out.Runs)
-	out.PositionRMSE = math.Sqrt(rmse2 / float64(covered))
-	for _, gs := range gsum {
-		out.GOSPA = append(out.GOSPA, mean(gs))
-	}
-	cons, err := metrics.CheckConsistency(nees, sc.spec.Model.StateDim, NEESConfidence)
-	if err == nil && cons.Judged > 0 {
-		for _, st := range cons.Steps {
-			if st.Count > 0 {
-				out.NEES = append(out.NEES, st.Mean)
-			}
-		}
-		out.NEESLow, out.NEESHigh = metrics.Interval(sc.spec.Model.StateDim, out.Runs, NEESConfidence)
-		out.NEESConfidence = NEESConfidence
-		out.NEESInBand = cons.InsideFraction
-	}
-	return out
-}
-
-func mean(xs []float64) float64 {
-	if len(xs) == 0 {
-		return 0
-	}
-	s := 0.0
-	for _, x := range xs {
-		s += x
-	}
-	return s / float64(len(xs))
-}
-
-// gates judges the project's gates on a scenario.
-func (s *settings) gates(sc *scen) []result.Gate {
-	var out []result.Gate
-	for _, g := range s.cfg.Gates {
-		key := gateMetrics[g.Metric]
-		var cand, base []float64
-		baseName := "the reference"
-		var blessed, candB []float64
-		for _, j := range sc.jobs {
-			if j.score == nil || j.refSc == nil || j.refSc.err != nil {
-				continue
-			}
-			v, ok := j.score.whole[key]
-			if !ok {
-				continue
-			}
-			cand = append(cand, v)
-			base = append(base, j.refSc.whole[key])
-			if b, ok := j.blessed[key]; ok {
-				blessed = append(blessed, b)
-				candB = append(candB, v)
-			}
-		}
-		if g.Limit != nil {
-			out = append(out, absoluteGate(g, key, cand))
-		}
-		if g.Paired != nil {
-			if len(blessed) >= 2 {
-				// Paired on the runs that have blessed metrics.
-				cand, base = candB, blessed
-				baseName = "the blessed metrics"
-			}
-			out = append(out, pairedGate(g, key, cand, base, baseName))
-		}
-	}
-	return out
-}
-
 func absoluteGate(g config.Gate, key string, vals []float64) result.Gate {
 	name := g.Metric + " limit"
 	if len(vals) == 0 {
@@ -289,4 +188,38 @@ func gateOf(v metrics.Verdict, prefix string) result.Gate {
 	}
 	return result.Gate{Name: v.Gate, Status: st, Estimate: v.Estimate, Low: v.Lo, High: v.Hi,
 		Threshold: v.Limit, Message: prefix + v.Reason}
+}
+
+// neesSamples copies the per-step NEES values for the result: one list per
+// step, empty where no matched track has a covariance; nil when no step
+// has any (a tracker without covariances).
+func neesSamples(nees [][]float64, steps int) [][]float64 {
+	any := false
+	for _, v := range nees {
+		any = any || len(v) > 0
+	}
+	if !any {
+		return nil
+	}
+	out := make([][]float64, steps)
+	for k := range out {
+		out[k] = []float64{}
+		if k < len(nees) {
+			out[k] = append(out[k], nees[k]...)
+		}
+	}
+	return out
+}
+
+// valuesOf lists whole-run metric values by name, in alphabetical order.
+func valuesOf(m map[string]float64) []result.Value {
+	if len(m) == 0 {
+		return nil
+	}
+	out := make([]result.Value, 0, len(m))
+	for k, v := range m {
+		out = append(out, result.Value{Metric: k, Value: v})
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Metric < out[j].Metric })
+	return out
 }

@@ -1,0 +1,188 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+
+	"trackgate/harness/config"
+	"trackgate/harness/metrics"
+	"trackgate/harness/result"
+)
+
+// Judge summarises every scenario of s whose planned runs are all present
+// (RunsPlanned > 0 and as many runs) and judges the project's gates on it,
+// from nothing but what the runs carry: their per-step metrics
+// (RunMetrics.GOSPA, NEESSamples) and whole-run values (Values,
+// ReferenceValues, BlessedValues). It replaces those scenarios' Metrics and
+// Gates, sets their status to the worst of their runs and of the gates that
+// were decided, and the suite's status to the worst of its scenarios.
+// Scenarios with runs missing (one shard's share), and those with a run
+// that has metrics but no Values (a result written before runs carried
+// them), are left as they are.
+//
+// Check calls it on the suite it has just filled, and trackgate merge on
+// the merge of shard results, so that a suite whose runs were spread over
+// shards and merged is judged exactly like the unsharded one: same inputs,
+// same order of summation, same bytes.
+//
+// The summary of a scenario over its N runs with metrics:
+//
+//	GOSPA per step:  the mean over runs of the run's GOSPA at the step;
+//	MeanGOSPA:       the mean over runs of the run's time average;
+//	PositionRMSE:    sqrt of the mean over runs of the run's RMSE²;
+//	NEES per step:   the mean of every matched track's NEES at the step over
+//	                 all runs, judged against the chi-square band
+//	                 [χ²_{nN}⁻¹((1−c)/2), χ²_{nN}⁻¹((1+c)/2)] / N, c = 0.95.
+//
+// An absolute gate compares the mean of the runs' values with its limit;
+// a paired gate (metrics.Paired) compares the runs' values with a baseline
+// on the same seeds: the blessed values when at least two runs carry them,
+// the reference's otherwise.
+//
+// The error is for a gate naming an unknown metric; s is then unchanged.
+//
+// References:
+//   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications
+//     to Tracking and Navigation", Wiley, 2001, §5.4 (the N-run average NEES
+//     and its chi-square acceptance interval).
+//   - W. S. Gosset ("Student"), "The probable error of a mean", Biometrika
+//     6(1):1–25, 1908 (the paired t interval of metrics.Paired).
+func Judge(s *result.Suite, cfg config.Config) error {
+	for i, g := range cfg.Gates {
+		if _, ok := gateMetrics[g.Metric]; !ok {
+			return fmt.Errorf("gates[%d].metric: expected one of %v, got %q", i, gateMetricNames(), g.Metric)
+		}
+	}
+	for i := range s.Scenarios {
+		sc := &s.Scenarios[i]
+		if sc.RunsPlanned <= 0 || len(sc.Runs) != sc.RunsPlanned || !carriesValues(sc) {
+			continue
+		}
+		sc.Status = result.Pass
+		for _, r := range sc.Runs {
+			sc.Status = result.Worst(sc.Status, r.Status)
+		}
+		sc.Metrics = summarise(sc)
+		sc.Gates = judgeGates(sc, cfg.Gates)
+		for _, g := range sc.Gates {
+			// A gate that could not be judged (too few runs) is reported
+			// but does not mark the scenario skipped.
+			if g.Status.Rank() > result.Skip.Rank() {
+				sc.Status = result.Worst(sc.Status, g.Status)
+			}
+		}
+	}
+	if len(s.Scenarios) > 0 {
+		s.Status = result.Pass
+		for _, sc := range s.Scenarios {
+			s.Status = result.Worst(s.Status, sc.Status)
+		}
+	}
+	return nil
+}
+
+// summarise computes a scenario's summary metrics from its runs (see
+// Judge); nil when no run has metrics.
+func summarise(sc *result.Scenario) *result.Metrics {
+	out := &result.Metrics{}
+	var gsum, nees [][]float64
+	rmse2 := 0.0
+	for _, r := range sc.Runs {
+		m := r.Metrics
+		if m == nil {
+			continue
+		}
+		out.Runs++
+		out.MeanGOSPA += m.MeanGOSPA
+		out.IDSwitches += m.IDSwitches
+		out.FalseTracks += m.FalseTracks
+		rmse2 += m.PositionRMSE * m.PositionRMSE
+		for k, g := range m.GOSPA {
+			for len(gsum) <= k {
+				gsum = append(gsum, nil)
+			}
+			gsum[k] = append(gsum[k], g)
+		}
+		for k, v := range m.NEESSamples {
+			for len(nees) <= k {
+				nees = append(nees, nil)
+			}
+			nees[k] = append(nees[k], v...)
+		}
+	}
+	if out.Runs == 0 {
+		return nil
+	}
+	out.MeanGOSPA /= float64(out.Runs)
+	out.PositionRMSE = math.Sqrt(rmse2 / float64(out.Runs))
+	for _, gs := range gsum {
+		out.GOSPA = append(out.GOSPA, mean(gs))
+	}
+	cons, err := metrics.CheckConsistency(nees, sc.StateDim, NEESConfidence)
+	if err == nil && cons.Judged > 0 {
+		for _, st := range cons.Steps {
+			if st.Count > 0 {
+				out.NEES = append(out.NEES, st.Mean)
+			}
+		}
+		out.NEESLow, out.NEESHigh = metrics.Interval(sc.StateDim, out.Runs, NEESConfidence)
+		out.NEESConfidence = NEESConfidence
+		out.NEESInBand = cons.InsideFraction
+	}
+	return out
+}
+
+func mean(xs []float64) float64 {
+	if len(xs) == 0 {
+		return 0
+	}
+	s := 0.0
+	for _, x := range xs {
+		s += x
+	}
+	return s / float64(len(xs))
+}
+
+// judgeGates judges the gates on a scenario's runs (see Judge).
+func judgeGates(sc *result.Scenario, gates []config.Gate) []result.Gate {
+	var out []result.Gate
+	for _, g := range gates {
+		key := gateMetrics[g.Metric]
+		var cand, candRef, ref, candB, blessed []float64
+		for _, r := range sc.Runs {
+			v, ok := result.Lookup(r.Values, key)
+			if !ok {
+				continue
+			}
+			cand = append(cand, v)
+			if b, ok := result.Lookup(r.ReferenceValues, key); ok {
+				candRef, ref = append(candRef, v), append(ref, b)
+			}
+			if b, ok := result.Lookup(r.BlessedValues, key); ok {
+				candB, blessed = append(candB, v), append(blessed, b)
+			}
+		}
+		if g.Limit != nil {
+			out = append(out, absoluteGate(g, key, cand))
+		}
+		if g.Paired != nil {
+			if len(blessed) >= 2 {
+				out = append(out, pairedGate(g, key, candB, blessed, "the blessed metrics"))
+			} else {
+				out = append(out, pairedGate(g, key, candRef, ref, "the reference"))
+			}
+		}
+	}
+	return out
+}
+
+// carriesValues reports whether every run of sc that has metrics also
+// carries its whole-run values.
+func carriesValues(sc *result.Scenario) bool {
+	for _, r := range sc.Runs {
+		if r.Metrics != nil && r.Values == nil {
+			return false
+		}
+	}
+	return true
+}
