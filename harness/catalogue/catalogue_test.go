@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"runtime"
 	"slices"
 	"strings"
 	"testing"
@@ -36,6 +37,12 @@ func TestMain(m *testing.M) {
 	bin = filepath.Join(dir, "trackgate")
 	cmd := exec.Command("go", "build", "-o", bin, "./cmd/trackgate")
 	cmd.Dir = "../.."
+	// The same settings as the amd64-v1 build of TestPortCertification,
+	// which reuses this binary: nothing fuses in it.
+	cmd.Env = append(os.Environ(), "CGO_ENABLED=0", "GOFLAGS=-buildvcs=false")
+	if runtime.GOARCH == "amd64" {
+		cmd.Env = append(cmd.Env, "GOAMD64=v1")
+	}
 	if out, err := cmd.CombinedOutput(); err != nil {
 		fmt.Fprintf(os.Stderr, "go build ./cmd/trackgate: %v\n%s", err, out)
 		os.RemoveAll(dir)
