@@ -138,6 +138,7 @@ func TestFaults(t *testing.T) {
 		{mode: "grandchild", class: Hang, step: 1, stderr: "stubborn grandchild running"},
 		{mode: "slow", class: Hang, detail: "run timeout", cfg: func(c *Config) { c.RunTimeout = 250 * time.Millisecond; c.ReplyTimeout = 5 * time.Second }},
 		{mode: "garbage", class: BadJSON, step: 1, line: 3},
+		{mode: "bad-utf8", class: BadJSON, step: 1, line: 3, detail: "tracks[0].id: invalid UTF-8"},
 		{mode: "long", class: LineTooLong, step: 1, line: 3},
 		{mode: "wrong-step", class: WrongStep, step: 1, line: 3, detail: "reply for step 2, want 1"},
 		{mode: "nan", class: NonFinite, step: 1, line: 3, detail: "tracks[0].mean[1]"},

@@ -148,6 +148,9 @@ func fakeTracker(mode string, args []string) {
 					c.Start()
 					signal.Ignore(syscall.SIGTERM)
 					time.Sleep(time.Hour)
+				case "bad-utf8":
+					raw("{\"type\":\"tracks\",\"step\":1,\"tracks\":[{\"id\":\"buoy-\xe9\",\"mean\":[0,0,0,0],\"detection\":null}]}")
+					continue
 				case "garbage":
 					raw(`tracks: 2`)
 					continue

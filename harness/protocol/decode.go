@@ -313,6 +313,7 @@ func parseReady(p *parser, line []byte) (Ready, *Error) {
 				break
 			}
 			r.Name, _ = p.str()
+			p.named("tracker")
 			haveName = true
 		case "version":
 			at := p.i
@@ -321,6 +322,7 @@ func parseReady(p *parser, line []byte) (Ready, *Error) {
 				break
 			}
 			r.Version, _ = p.str()
+			p.named("version")
 		case "reports":
 			if !p.expect('{') {
 				break
@@ -470,6 +472,7 @@ func (d *Decoder) parseTrack(i int, f *mot.Frame) {
 				start := p.i
 				raw, esc, ok := p.rawString()
 				if !ok {
+					p.named(trackField(i, ".id"))
 					return
 				}
 				if esc {

@@ -117,14 +117,25 @@ func (p *parser) rawString() (raw []byte, escaped, ok bool) {
 		case c == '"':
 			raw = p.b[start:p.i]
 			p.i++
-			if escaped || !utf8.Valid(raw) {
-				// Leave the unusual cases to encoding/json's checks.
+			// encoding/json would turn invalid UTF-8 and unpaired
+			// surrogate escapes into U+FFFD, so that distinct strings
+			// (track ids) could become equal; JSON text exchanged between
+			// programs must be UTF-8 (RFC 8259, section 8.1).
+			if at := invalidUTF8(raw); at >= 0 {
+				p.fail(Syntax, start+at, "", "invalid UTF-8 in string")
+				return nil, false, false
+			}
+			if escaped {
+				if at := loneSurrogate(raw); at >= 0 {
+					p.fail(Syntax, start+at, "", "unpaired UTF-16 surrogate escape in string")
+					return nil, false, false
+				}
+				// Leave the other unusual cases to encoding/json's checks.
 				var s string
 				if err := json.Unmarshal(p.b[start-1:p.i], &s); err != nil {
 					p.fail(Syntax, start-1, "", "invalid string")
 					return nil, false, false
 				}
-				escaped = true
 			}
 			return raw, escaped, true
 		case c == '\\':
@@ -137,6 +148,64 @@ func (p *parser) rawString() (raw []byte, escaped, ok bool) {
 		}
 	}
 	return nil, false, p.syntax("unterminated string")
+}
+
+// invalidUTF8 returns the offset of the first byte of b that does not
+// start a valid UTF-8 sequence, or −1.
+func invalidUTF8(b []byte) int {
+	if utf8.Valid(b) {
+		return -1
+	}
+	for i := 0; i < len(b); {
+		r, n := utf8.DecodeRune(b[i:])
+		if r == utf8.RuneError && n == 1 {
+			return i
+		}
+		i += n
+	}
+	return -1
+}
+
+// loneSurrogate returns the offset of the first \u escape in the string
+// body b that is a UTF-16 surrogate without its partner (a high surrogate
+// D800–DBFF must be followed at once by an escaped low surrogate
+// DC00–DFFF; RFC 8259, section 7), or −1.
+func loneSurrogate(b []byte) int {
+	hex := func(i int) int {
+		if i+6 > len(b) || b[i] != '\\' || b[i+1] != 'u' {
+			return -1
+		}
+		v, err := strconv.ParseUint(string(b[i+2:i+6]), 16, 16)
+		if err != nil {
+			return -1
+		}
+		return int(v)
+	}
+	for i := 0; i < len(b); i++ {
+		if b[i] != '\\' {
+			continue
+		}
+		v := hex(i)
+		switch {
+		case v >= 0xD800 && v <= 0xDBFF:
+			if w := hex(i + 6); w < 0xDC00 || w > 0xDFFF {
+				return i
+			}
+			i += 11
+		case v >= 0xDC00 && v <= 0xDFFF:
+			return i
+		default:
+			i++ // skip the escaped character
+		}
+	}
+	return -1
+}
+
+// named gives the pending error, if it names no field yet, the field name.
+func (p *parser) named(field string) {
+	if p.err != nil && p.err.Field == "" {
+		p.err.Field = field
+	}
 }
 
 // str reads a string value.

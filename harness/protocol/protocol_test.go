@@ -17,7 +17,9 @@ import (
 // velocity, state [x, vx, y, vy].
 func harbourStart() Start {
 	f, _ := mot.MatFromRows([][]float64{{1, 2, 0, 0}, {0, 1, 0, 0}, {0, 0, 1, 2}, {0, 0, 0, 1}})
-	q, _ := mot.MatFromRows([][]float64{{0.2, 0.15, 0, 0}, {0.15, 0.1, 0, 0}, {0, 0, 0.2, 0.15}, {0, 0, 0.15, 0.1}})
+	// Q is symmetric positive definite: its 2×2 blocks have determinant
+	// 0.2·0.125 − 0.15² = 0.0025 > 0 (Sylvester's criterion, common practice).
+	q, _ := mot.MatFromRows([][]float64{{0.2, 0.15, 0, 0}, {0.15, 0.125, 0, 0}, {0, 0, 0.2, 0.15}, {0, 0, 0.15, 0.125}})
 	h, _ := mot.MatFromRows([][]float64{{1, 0, 0, 0}, {0, 0, 1, 0}})
 	r, _ := mot.MatFromRows([][]float64{{16, 0}, {0, 16}})
 	return Start{
@@ -164,6 +166,22 @@ func TestParseTracks(t *testing.T) {
 		{name: "negative detection", line: `{"type":"tracks","step":1,"tracks":[{"id":1,"mean":[3],"detection":-1}]}`, kind: Shape, field: "tracks[0].detection"},
 		{name: "missing mean", line: `{"type":"tracks","step":1,"tracks":[{"id":1}]}`, kind: Shape, field: "tracks[0].mean"},
 		{name: "bad escape", line: `{"type":"tracks","step":1,"tracks":[{"id":"\q","mean":[1]}]}`, kind: Syntax},
+		// Invalid UTF-8 and unpaired surrogates would both decode to
+		// U+FFFD and make distinct ids equal (RFC 8259, sections 7 and 8.1).
+		{name: "invalid UTF-8 id", line: "{\"type\":\"tracks\",\"step\":1,\"tracks\":[{\"id\":\"ab\xff\",\"mean\":[1]}]}",
+			kind: Syntax, field: "tracks[0].id", col: 46},
+		{name: "truncated UTF-8 id", line: "{\"type\":\"tracks\",\"step\":1,\"tracks\":[{\"id\":\"a\",\"mean\":[1]},{\"id\":\"\xc3\",\"mean\":[1]}]}",
+			kind: Syntax, field: "tracks[1].id"},
+		{name: "lone high surrogate", line: `{"type":"tracks","step":1,"tracks":[{"id":"x\ud800y","mean":[1]}]}`,
+			kind: Syntax, field: "tracks[0].id", col: 45},
+		{name: "lone low surrogate", line: `{"type":"tracks","step":1,"tracks":[{"id":"\udc00","mean":[1]}]}`,
+			kind: Syntax, field: "tracks[0].id"},
+		{name: "surrogate pair", line: `{"type":"tracks","step":1,"tracks":[{"id":"\ud83d\udea2","mean":[1]}]}`,
+			want: mot.Frame{Step: 1, Tracks: []mot.Estimate{{Track: "\U0001F6A2", Mean: []float64{1}, Detection: -1}}}},
+		{name: "valid UTF-8 id", line: `{"type":"tracks","step":1,"tracks":[{"id":"Fähre","mean":[1]}]}`,
+			want: mot.Frame{Step: 1, Tracks: []mot.Estimate{{Track: "Fähre", Mean: []float64{1}, Detection: -1}}}},
+		{name: "invalid UTF-8 in an extra field", line: "{\"type\":\"tracks\",\"note\":\"\xfe\",\"step\":1,\"tracks\":[]}",
+			kind: Syntax, col: 26},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

@@ -17,8 +17,10 @@ type StepFunc func(scan mot.Scan) (mot.Frame, error)
 // to get the run's StepFunc and answers with ready (Protocol set to
 // Version); for each scan it answers with the StepFunc's frame. It returns
 // nil at the end of input after a stop (or before any start), and an error
-// naming the line for anything else: a malformed message, a scan outside a
-// run, an error from begin or step, or a failed write.
+// naming the line for anything else: a malformed message, a start message
+// that fails Validate (checked before begin is called and before ready is
+// sent), a scan outside a run, an error from begin or step, or a failed
+// write.
 func Serve(r io.Reader, w io.Writer, ready Ready, begin func(Start) (StepFunc, error)) error {
 	dec := NewDecoder(r, "stdin", 0)
 	bw := bufio.NewWriterSize(w, 64<<10)
@@ -40,6 +42,9 @@ func Serve(r io.Reader, w io.Writer, ready Ready, begin func(Start) (StepFunc, e
 		case TypeStart:
 			if step != nil {
 				return fmt.Errorf("stdin:%d: start inside a run, want a stop message first", dec.Line())
+			}
+			if err = req.Start.Validate(); err != nil {
+				return fmt.Errorf("stdin:%d: %w", dec.Line(), err)
 			}
 			if step, err = begin(req.Start); err != nil {
 				return fmt.Errorf("stdin:%d: %w", dec.Line(), err)
