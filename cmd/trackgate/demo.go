@@ -39,7 +39,8 @@ and spoken to over the tracker protocol like any other tracker:
 	trackgate reference -variant NAME     a changed reference (default greedy)
 
 Both are checked against the reference (as 'trackgate check --against
-reference' does, tie margin 1e-9, float64-port profile). The demo prints
+reference' does, float64-port profile, tie margin 1e-9, or the variant's
+own where it needs a wider one: tie-flip's is 0.5). The demo prints
 both verdicts and writes, into DIR:
 
 	reference.html, reference.json        the reference tracker's report
@@ -116,7 +117,7 @@ func runDemo(args []string, stdout, stderr io.Writer) int {
 			return fail(exitUsage, "cannot find the trackgate program to run as the tracker: %v", err)
 		}
 		opts := runner.Options{
-			Config:    config.Config{TieMargin: demoTieMargin, Tracker: config.Tracker{Env: env}},
+			Config:    config.Config{TieMargin: max(demoTieMargin, v.TieMargin), Tracker: config.Tracker{Env: env}},
 			Tracker:   argv,
 			Scenarios: files,
 			Against:   runner.AgainstReference,

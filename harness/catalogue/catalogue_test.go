@@ -90,6 +90,7 @@ func benches() []bench {
 		"scale-container-yard", "tie-mirror-pair"}
 	const tau = 1e-9 // the stock project file's tie margin
 	f64, f32 := compare.Float64PortName, compare.Float32PortName
+	flip, _ := variant.Lookup("tie-flip")
 	return []bench{
 		{"", "greedy", f64, tau, []string{"convoy-parallel-trucks", "crossing-harbour-vessels", "clutter-fishing-grounds", "lowpd-drifting-buoys"}, 3, true,
 			assocExpect(greedy), false},
@@ -110,8 +111,8 @@ func benches() []bench {
 		{"", "relabel", f64, tau, all, 2, false, nil, false},
 		{"", "shuffle", f64, tau, all, 2, false, nil, false},
 		{"", "resum", f64, tau, all, 2, false, nil, false},
-		{"exact-tie", "tie-flip", f64, variant.FlipMargin, []string{"tie-mirror-pair"}, 1, false, nil, true},
-		{"near-ties", "tie-flip", f64, variant.FlipMargin, []string{"convoy-parallel-trucks"}, 4, false, nil, true},
+		{"exact-tie", "tie-flip", f64, flip.TieMargin, []string{"tie-mirror-pair"}, 1, false, nil, true},
+		{"near-ties", "tie-flip", f64, flip.TieMargin, []string{"convoy-parallel-trucks"}, 4, false, nil, true},
 		{"", "float32", f32, tau, []string{"crossing-harbour-vessels", "convoy-parallel-trucks", "clutter-fishing-grounds", "scale-container-yard", "turn-coastal-aircraft"}, 2, false, nil, false},
 	}
 }

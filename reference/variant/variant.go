@@ -33,7 +33,11 @@ type Variant struct {
 	Harmful bool
 	// Summary says in one sentence what is changed.
 	Summary string
-	ch      change
+	// TieMargin is the smallest tie margin under which a gate must pass
+	// the variant when it is harmless: FlipMargin for tie-flip, 0 for the
+	// others.
+	TieMargin float64
+	ch        change
 }
 
 // StepFunc answers one scan of a run, as protocol.StepFunc does.
@@ -80,7 +84,7 @@ var catalogue = []Variant{
 	{Name: "resum", Summary: "inner products of predict and update summed from the last term to the first, P⁻ = F (P Fᵀ) + Q",
 		ch: change{predict: predictResum, update: updateResum}},
 	{Name: "tie-flip", Summary: "the second-best hypothesis is taken when the margin is at most FlipMargin",
-		ch: change{choose: chooseFlip}},
+		TieMargin: FlipMargin, ch: change{choose: chooseFlip}},
 	{Name: "fused", Summary: "predict and update written without float64(x*y) conversions, so multiply-adds may fuse",
 		ch: change{predict: predictFused, update: updateFused}},
 }

@@ -139,6 +139,9 @@ func TestCatalogue(t *testing.T) {
 		if v.Harmful {
 			harmful++
 		}
+		if want := map[bool]float64{true: FlipMargin, false: 0}[v.Name == "tie-flip"]; v.TieMargin != want {
+			t.Errorf("variant %q: tie margin %g, want %g", v.Name, v.TieMargin, want)
+		}
 	}
 	if harmful != 8 || len(Names()) != 13 {
 		t.Errorf("catalogue has %d harmful of %d variants, want 8 of 13", harmful, len(Names()))
