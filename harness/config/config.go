@@ -97,8 +97,14 @@ type Tolerance struct {
 
 // Override adjusts settings for the scenarios whose name matches.
 type Override struct {
-	// Match is a path.Match pattern on the scenario name.
+	// Match is a path.Match pattern on the scenario name. Parse accepts
+	// only patterns that can match a valid scenario name (lower-case
+	// letters and digits in words joined by single '-', at most 64
+	// characters), so "clutter-*" but not "clutter_*".
 	Match string
+	// Line and Col locate Match in the project file (1-based); both are 0
+	// for an override built in code.
+	Line, Col int
 	// Tolerance, if set, patches the rules in force. When its Profile is
 	// not "" it first starts again from that profile, dropping the patches
 	// made before it.

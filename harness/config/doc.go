@@ -41,7 +41,7 @@
 //	                               # association is a tie, not a regression; default 0
 //
 //	per_scenario:                  # applied in order to scenarios whose name matches
-//	  - match: "clutter_*"         # path.Match pattern on the scenario name
+//	  - match: "clutter-*"         # path.Match pattern on the scenario name
 //	    tolerance: {mean: {abs: 1e-4}}
 //	    tie_margin: 1e-6
 //
@@ -53,6 +53,12 @@
 //	    paired:                    # paired: the tracker against the reference over runs
 //	      confidence: 0.95         # in (0, 1)
 //	      min_effect: 0.25         # smallest difference that counts, ≥ 0
+//
+// A per-scenario pattern must be able to match a scenario name (lower-case
+// letters and digits in words joined by single '-', at most 64
+// characters): "clutter_*" or "Harbour*" is an error, since no scenario can
+// carry such a name. A pattern that is valid but matches none of the
+// scenarios of a run is found with Config.UnusedOverrides.
 //
 // The default tolerance profile is float64-port: a tracker that implements
 // the same algorithm as the reference in float64 on another machine passes;

@@ -22,14 +22,14 @@ func ExampleConfig_For() {
 	c, err := config.Parse("trackgate.yaml", []byte(`
 tolerance: {profile: float32-port}
 per_scenario:
-  - match: "warehouse_*"
+  - match: "warehouse-*"
     tolerance: {mean: {abs: 0.05}}
 `))
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	p, _ := c.For("warehouse_floor")
+	p, _ := c.For("warehouse-floor")
 	fmt.Println(p.Name, p.Mean.Abs, p.Cov.Abs)
 	// Output:
 	// float32-port 0.05 0.125

@@ -415,8 +415,10 @@ func (w *walker) overrides(n *yaml.Node, p string) []Override {
 		} else if s, ok := w.nonEmpty(v, join(ip, "match"), "a pattern on scenario names"); ok {
 			if _, err := path.Match(s, ""); err != nil {
 				w.errAt(v, join(ip, "match"), "expected a pattern on scenario names, got %q: %v", s, err)
+			} else if shortestName(s) < 0 {
+				w.errAt(v, join(ip, "match"), "pattern %q can never match a scenario name (%s); expected a pattern such as \"clutter-*\"", s, nameRule)
 			}
-			o.Match = s
+			o.Match, o.Line, o.Col = s, v.Line, v.Column
 		}
 		if v := m["tolerance"]; v != nil {
 			o.Tolerance = &Tolerance{}
