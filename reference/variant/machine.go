@@ -70,6 +70,10 @@ func newMachine(cfg tracker.Config, ch change) *machine {
 			m.err = fmt.Errorf("variant: object %d (%q): prior of length %d with %d covariance entries, want %d and %d", i, o.ID, len(o.Mean), len(o.Cov.Data), n, n*n)
 			return m
 		}
+		if o.Appear < 0 {
+			m.err = fmt.Errorf("variant: object %d (%q): appear %d, want ≥ 0", i, o.ID, o.Appear)
+			return m
+		}
 	}
 	return m
 }

@@ -473,3 +473,43 @@ func BenchmarkVariantStep(b *testing.B) {
 		})
 	}
 }
+
+// TestBadConfigurations: configuration and input errors come back from a
+// step as errors, never as panics, for every variant.
+func TestBadConfigurations(t *testing.T) {
+	good := oneObject(0.9, 0.01)
+	short := oneObject(0.9, 0.01)
+	short.Objects[0].Mean = []float64{0}
+	early := oneObject(0.9, 0.01)
+	early.Objects[0].Appear = -1
+	twice := oneObject(0.9, 0.01)
+	twice.Objects = append(twice.Objects, twice.Objects[0])
+	noF := oneObject(0.9, 0.01)
+	noF.Model.F = mot.Mat{}
+	for _, v := range All() {
+		for _, tc := range []struct {
+			name string
+			cfg  tracker.Config
+			scan mot.Scan
+		}{
+			{"short prior", short, mot.Scan{}},
+			{"negative appear", early, mot.Scan{}},
+			{"repeated id", twice, mot.Scan{}},
+			{"no F", noF, mot.Scan{}},
+			{"wrong measurement size", good, mot.Scan{Detections: []mot.Detection{{ID: 1, Z: []float64{1, 2}}}}},
+			{"non-finite measurement", good, mot.Scan{Detections: []mot.Detection{{ID: 1, Z: []float64{math.NaN()}}}}},
+			{"repeated detection", good, mot.Scan{Detections: []mot.Detection{{ID: 1, Z: []float64{0}}, {ID: 1, Z: []float64{1}}}}},
+		} {
+			if _, err := v.New(tc.cfg)(tc.scan); err == nil {
+				t.Errorf("%s, %s: no error", v.Name, tc.name)
+			}
+		}
+		st := v.New(good)
+		if _, err := st(mot.Scan{Step: 2}); err != nil {
+			t.Fatalf("%s: %v", v.Name, err)
+		}
+		if _, err := st(mot.Scan{Step: 2}); err == nil {
+			t.Errorf("%s: a repeated step gave no error", v.Name)
+		}
+	}
+}
