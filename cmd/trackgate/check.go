@@ -24,7 +24,7 @@ func init() {
 		name: "check",
 		usage: "check [--tracker CMD] [--against reference|golden|both] [--config FILE] [--runs N] [-j N] " +
 			"[--shard K/N --shard-base 0|1] [--profile NAME] [--out DIR] [--ci] [--json FILE] [--junit FILE] " +
-			"[--markdown FILE] [--html FILE] [SCENARIO...]",
+			"[--markdown FILE] [--html FILE] [--timing] [--quiet] [SCENARIO...]",
 		summary: "Run the tracker on the scenarios and gate it against the reference tracker and the golden files.",
 		run:     runCheck,
 	})
@@ -39,6 +39,13 @@ sign or a backquote; outside quotes a backslash escapes the next character),
 with no shell run and no variable or glob expansion; without --tracker it is
 tracker.command of the project file. Without SCENARIO arguments the
 project file's scenario globs are used.
+
+Results are the same, byte for byte, for the same inputs: --timing is the
+one option that records times (each run's share of the tracker phase, in
+"seconds" of the JSON result and the JUnit report), so leave it off where
+results are compared or cached. On a terminal a progress line (runs done of
+all, elapsed time) is kept on standard error while the tracker runs; it is
+never part of any report, and --quiet turns it off.
 
 Exit codes: 0 pass (ties allowed); 1 a regression was found; 2 bad usage,
 configuration or scenario, or a stale golden; 3 the tracker itself faulted
@@ -155,7 +162,8 @@ func runCheck(args []string, stdout, stderr io.Writer) int {
 	junitOut := fs.String("junit", "", "write a JUnit XML report to this file")
 	mdOut := fs.String("markdown", "", "write a Markdown summary to this file")
 	htmlOut := fs.String("html", "", "write an HTML report with plots to this file")
-	timing := fs.Bool("timing", false, "print where the time went (tracker versus harness) to standard error")
+	timing := fs.Bool("timing", false, "print where the time went (tracker versus harness) to standard error and record each run's tracker time in the result (which then differs from run to run)")
+	quiet := fs.Bool("quiet", false, "no progress line on standard error")
 	scenarios, code, ok := parseWithArgs(fs, args)
 	if !ok {
 		return code
@@ -168,9 +176,16 @@ func runCheck(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail("%v", err)
 	}
+	o.Timing = *timing
+	var line *runner.ProgressLine
+	if !*quiet && runner.IsTerminal(stderr) {
+		line = runner.NewProgressLine(stderr, nil)
+		o.Progress = line.Update
+	}
 	ctx, cancel := interruptible()
 	defer cancel()
 	suite, tm, err := runner.CheckTimed(ctx, o)
+	line.Finish()
 	if err != nil {
 		return fail("%v", err)
 	}

@@ -154,7 +154,7 @@ func (s *settings) drive(ctx context.Context, jobs []*job) {
 		}
 	}
 	t0 := time.Now()
-	res := driver.RunMany(ctx, s.drv, djobs, s.workers)
+	res := s.runTracker(ctx, djobs)
 	per := 0.0
 	if len(djobs) > 0 {
 		per = time.Since(t0).Seconds() * float64(s.workers) / float64(len(djobs))
@@ -163,6 +163,61 @@ func (s *settings) drive(ctx context.Context, jobs []*job) {
 		jobs[i].res = res[k]
 		jobs[i].secs = per
 	}
+}
+
+// runTracker runs the tracker under test over djobs: in process, or
+// through the driver, all at once or, to report progress, a few runs at a
+// time per worker.
+func (s *settings) runTracker(ctx context.Context, djobs []driver.Job) []driver.Result {
+	total := len(djobs)
+	if s.Local != nil {
+		if s.Progress == nil {
+			return s.driveLocal(ctx, djobs)
+		}
+		out := make([]driver.Result, total)
+		p := newTally(s.Progress, total)
+		s.parallel(total, func(i int) {
+			out[i] = s.runLocal(ctx, djobs[i])
+			p.add(1)
+		})
+		return out
+	}
+	if s.Progress == nil || total == 0 {
+		return driver.RunMany(ctx, s.drv, djobs, s.workers)
+	}
+	// Chunks of about a fiftieth of the suite per update, at most 16
+	// runs, each chunk served by one tracker start.
+	size := max(1, min(16, total/(50*max(1, s.workers))))
+	chunks := (total + size - 1) / size
+	out := make([]driver.Result, total)
+	p := newTally(s.Progress, total)
+	s.parallel(chunks, func(c int) {
+		lo, hi := c*size, min(total, (c+1)*size)
+		copy(out[lo:hi], driver.RunMany(ctx, s.drv, djobs[lo:hi], 1))
+		p.add(hi - lo)
+	})
+	return out
+}
+
+// tally counts finished runs for Options.Progress.
+type tally struct {
+	mu    sync.Mutex
+	done  int
+	total int
+	f     func(done, total int)
+}
+
+func newTally(f func(int, int), total int) *tally {
+	t := &tally{f: f, total: total}
+	f(0, total)
+	return t
+}
+
+func (t *tally) add(n int) {
+	t.mu.Lock()
+	defer t.mu.Unlock()
+	t.done += n
+	t.f(t.done, t.total)
 }
 
 // parallel calls f(0..n-1) on up to s.workers goroutines.

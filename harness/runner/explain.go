@@ -154,7 +154,7 @@ func Explain(ctx context.Context, o ExplainOptions, w io.Writer) error {
 		bw.printf("  %s ← %s: mean %s, NIS %s\n", od.Object, short(od.Detection), vec(od.Mean), nis)
 	}
 
-	if len(s.argv) > 0 {
+	if len(s.argv) > 0 || s.Local != nil {
 		s.drive(ctx, []*job{j})
 		s.judge(j)
 		explainTracker(bw, j, k)

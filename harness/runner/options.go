@@ -97,6 +97,15 @@ type Options struct {
 	Timing bool
 	// Tool is written into result.Suite.Tool ("" means "trackgate").
 	Tool string
+	// Local, if set, is the tracker under test, run in this process
+	// instead of a command (Tracker and Config.Tracker are then unused).
+	Local *Local
+	// Progress, if set, is called as runs of the tracker finish, with the
+	// number done and the number to do, from one goroutine at a time. It
+	// never affects the result. With a command tracker the runs are then
+	// handed to the driver a few at a time, so that progress can be told,
+	// at the price of a tracker start per few runs.
+	Progress func(done, total int)
 }
 
 // settings is Options resolved: every default filled in and checked.
@@ -142,13 +151,18 @@ func resolve(o Options, needTracker bool) (*settings, error) {
 	}
 	s.argv = o.Tracker
 	dir := ""
-	if s.argv == nil {
+	if o.Local != nil {
+		if o.Local.Begin == nil {
+			return nil, fmt.Errorf("local tracker %q: Begin is nil", o.Local.Ready.Name)
+		}
+		s.argv = nil
+	} else if s.argv == nil {
 		s.argv = s.cfg.Tracker.Command
 		if s.argv != nil {
 			dir = s.cfg.Resolve(s.cfg.Tracker.Dir)
 		}
 	}
-	if needTracker && len(s.argv) == 0 {
+	if needTracker && len(s.argv) == 0 && o.Local == nil {
 		return nil, fmt.Errorf("no tracker: give a tracker command or set tracker.command in %s", config.FileName)
 	}
 	s.name = o.TrackerName
