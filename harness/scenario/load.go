@@ -34,6 +34,11 @@ const (
 	MaxErrors = 100
 	// DefaultGateProb is GateProb when the file does not give one.
 	DefaultGateProb = 0.999
+	// MaxClutterMean is the largest clutter mean per scan, given as
+	// mean-count or derived from density × region volume; it keeps a
+	// run's size bounded by the scenario rather than by chance. The
+	// simulator enforces the same limit.
+	MaxClutterMean = 1e6
 )
 
 var (
@@ -168,6 +173,9 @@ type declared struct {
 	motion   Motion
 	variance []float64 // random walk given as per-dimension variances
 	n        int       // state dimension, 0 when unknown
+	// accelNode and turnNode are the accel-noise and turn-rate values,
+	// nil when absent.
+	accelNode, turnNode *yaml.Node
 }
 
 func (w *walker) spec(root *yaml.Node) *Spec {
@@ -276,9 +284,73 @@ func (w *walker) spec(root *yaml.Node) *Spec {
 	case ConstantTurn:
 		s.Model.F, s.Model.Q = motion.ConstantTurn(dt, d.motion.TurnRate, d.motion.AccelNoise)
 	}
+	if d.motion.Kind != RandomWalk {
+		w.motionFinite(s.Model, d, top.val["interval"])
+		if len(w.errs) > 0 {
+			return nil
+		}
+	}
 	s.Model.StateDim = d.n
 	slices.SortStableFunc(s.Scripted, func(a, b ScriptedScan) int { return a.Step - b.Step })
 	return s
+}
+
+// motionFinite reports a motion model whose F or Q, derived from the
+// interval, accel-noise and turn-rate by the formulas of harness/motion,
+// has a non-finite entry (an overflowing interval⁴·q/4, or a turn angle
+// ω·interval beyond float64). The error is placed at the value to blame:
+// turn-rate when the turn angle overflows, accel-noise when the same
+// interval with unit accel-noise gives a finite model, else interval.
+func (w *walker) motionFinite(md mot.Model, d declared, intervalNode *yaml.Node) {
+	name, at, v := "F", firstNonFinite(md.F), 0.0
+	if at < 0 {
+		name, at = "Q", firstNonFinite(md.Q)
+	}
+	if at < 0 {
+		return
+	}
+	bad := md.F
+	if name == "Q" {
+		bad = md.Q
+	}
+	v = bad.Data[at]
+	dt, q, omega := md.Interval, d.motion.AccelNoise, d.motion.TurnRate
+	entry := fmt.Sprintf("%s[%d][%d] = %v", name, at/bad.Cols, at%bad.Cols, v)
+	theta := float64(omega * dt)
+	switch {
+	case d.motion.Kind == ConstantTurn && d.turnNode != nil && (math.IsInf(theta, 0) || math.IsNaN(theta)):
+		w.errAt(d.turnNode, "motion.turn-rate", "%g times the interval %g overflows the turn angle, giving %s; expected a turn rate for which F and Q are finite (see the limits in scenarios/README.md)", omega, dt, entry)
+		return
+	case d.accelNode != nil && unitFinite(d.motion, dt):
+		w.errAt(d.accelNode, "motion.accel-noise", "%g with the interval %g gives %s; expected a variance for which Q is finite (interval⁴·accel-noise/4 at most 1.8e308, see scenarios/README.md)", q, dt, entry)
+		return
+	}
+	if intervalNode != nil {
+		w.errAt(intervalNode, "interval", "%g gives %s; expected an interval for which F and Q are finite (interval⁴·accel-noise/4 at most 1.8e308 and the interval below about 1.6e77 s, see scenarios/README.md)", dt, entry)
+	}
+}
+
+// unitFinite reports whether the motion model m over dt is finite with an
+// accel-noise of 1.
+func unitFinite(m Motion, dt float64) bool {
+	var f, q mot.Mat
+	if m.Kind == ConstantTurn {
+		f, q = motion.ConstantTurn(dt, m.TurnRate, 1)
+	} else {
+		f, q = motion.ConstantVelocity(m.Axes, dt, 1)
+	}
+	return firstNonFinite(f) < 0 && firstNonFinite(q) < 0
+}
+
+// firstNonFinite returns the index in a.Data of the first NaN or infinite
+// entry, or −1.
+func firstNonFinite(a mot.Mat) int {
+	for i, v := range a.Data {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return i
+		}
+	}
+	return -1
 }
 
 func (w *walker) motion(node *yaml.Node) declared {
@@ -364,6 +436,7 @@ func (w *walker) motion(node *yaml.Node) declared {
 	if kind == ConstantVelocity {
 		forbid("turn-rate", "constant-turn")
 	}
+	d.accelNode, d.turnNode = f.val["accel-noise"], f.val["turn-rate"]
 	if qn := w.require(f, "accel-noise", "q, the white-noise acceleration variance ≥ 0 in m²/s⁴"); qn != nil {
 		q, ok := w.floatVal(qn, "motion.accel-noise", "q, the white-noise acceleration variance ≥ 0 in m²/s⁴")
 		if ok && q < 0 {
@@ -511,6 +584,8 @@ func (w *walker) clutter(node *yaml.Node, m int, model *mot.Model) {
 		if v, ok := w.floatVal(cn, "clutter.mean-count", "the mean number of clutter detections per scan, ≥ 0"); ok {
 			if v < 0 {
 				w.errAt(cn, "clutter.mean-count", "%g is negative; expected the mean number of clutter detections per scan, ≥ 0", v)
+			} else if v > MaxClutterMean {
+				w.errAt(cn, "clutter.mean-count", "%g is above the limit; expected at most %g clutter detections per scan", v, float64(MaxClutterMean))
 			} else if !math.IsNaN(volume) {
 				model.ClutterMean, model.ClutterDensity = v, v/volume
 			}
@@ -520,9 +595,11 @@ func (w *walker) clutter(node *yaml.Node, m int, model *mot.Model) {
 			if v < 0 {
 				w.errAt(dn, "clutter.density", "%g is negative; expected the clutter intensity per unit volume, ≥ 0", v)
 			} else if !math.IsNaN(volume) {
-				mean := v * volume
+				mean := float64(v * volume)
 				if math.IsInf(mean, 0) {
 					w.errAt(dn, "clutter.density", "density × region volume overflows; expected a finite clutter count")
+				} else if mean > MaxClutterMean {
+					w.errAt(dn, "clutter.density", "%g × region volume %g gives %g clutter detections per scan; expected at most %g (lower the density or shrink the region)", v, volume, mean, float64(MaxClutterMean))
 				}
 				model.ClutterMean, model.ClutterDensity = mean, v
 			}

@@ -10,8 +10,10 @@ import (
 )
 
 // MaxClutterMean is the largest clutter mean per scan the simulator accepts;
-// it keeps a run's size bounded by the scenario rather than by chance.
-const MaxClutterMean = 1e6
+// it keeps a run's size bounded by the scenario rather than by chance. It
+// is the scenario loader's limit, so that a scenario that loads can be
+// simulated.
+const MaxClutterMean = scenario.MaxClutterMean
 
 // Sim is a scenario prepared for simulation: the spec checked and the
 // noise covariances factored once, so that many runs share the work. A Sim
