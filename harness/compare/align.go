@@ -323,15 +323,29 @@ type StepPairs struct {
 	Pairs map[string]string
 }
 
-// Follow matches tracker tracks with reference tracks at each step on its
-// own: the assignment minimising Σ_pairs d² + c²/2 · (unmatched tracks of
-// the step) over pairs at distance d < c — the optimal assignment of the
-// step's GOSPA (p = 2, α = 2; Rahmathullah, García-Fernández and Svensson,
-// FUSION 2017, Proposition 1). Pairs at distance ≥ c are never matched.
+// Follow matches tracker tracks with reference tracks step by step, the way
+// the CLEAR MOT metrics build their correspondences (K. Bernardin and R.
+// Stiefelhagen, "Evaluating multiple object tracking performance: the
+// CLEAR MOT metrics", EURASIP J. Image and Video Processing, 2008, §2.1):
 //
-// An identity switch is counted, as in the CLEAR MOT identity-switch count
-// (Bernardin and Stiefelhagen, EURASIP J. Image and Video Processing,
-// 2008; from memory), whenever a tracker track is matched to a reference
+//  1. every pair of the previous step whose two tracks both exist at this
+//     step at a distance d < c is kept, even when another matching would
+//     now be cheaper;
+//  2. the tracks left over are matched by the assignment minimising
+//     Σ_pairs d² + c²/2 · (unmatched tracks among them) over pairs at
+//     distance d < c — the optimal assignment of their GOSPA (p = 2,
+//     α = 2; Rahmathullah, García-Fernández and Svensson, FUSION 2017,
+//     Proposition 1).
+//
+// Pairs at distance ≥ c are never matched. "Previous step" is the step
+// before in the union of both sides' steps; at the first step, and for
+// tracks whose pair was broken, only rule 2 applies. Because of rule 1 two
+// tracks that pass close to each other (within c) keep their partners
+// rather than swapping whenever the estimates happen to be nearer the
+// other object, so such crossings count no switch.
+//
+// An identity switch is counted, as in CLEAR MOT's mismatch count (§2.1,
+// same reference), whenever a tracker track is matched to a reference
 // track other than the one it was last matched to (TrackSwitch), and
 // whenever a reference track is matched to a tracker track other than the
 // one last matched to it (ObjectSwitch); steps without a match in between
@@ -367,17 +381,11 @@ func Follow(want, got []mot.Frame, o Options) (Following, error) {
 				ts = append(ts, t)
 			}
 		}
-		save := make([]float64, len(rs)*len(ts))
-		for i, r := range rs {
-			for j, t := range ts {
-				s := capped(r.pos[k], t.pos[k], c2) - c2
-				if !(s < 0) {
-					s = math.Inf(1)
-				}
-				save[i*len(ts)+j] = s
-			}
+		var prev map[string]string
+		if n := len(out.Pairs); n > 0 {
+			prev = out.Pairs[n-1].Pairs
 		}
-		r2c, err := solveOpen(save, len(rs), len(ts))
+		r2c, err := matchStep(rs, ts, k, prev, c2)
 		if err != nil {
 			return Following{}, err
 		}
@@ -426,4 +434,66 @@ func Follow(want, got []mot.Frame, o Options) (Following, error) {
 		return x.Track < y.Track
 	})
 	return out, nil
+}
+
+// matchStep matches the reference tracks rs with the tracker tracks ts at
+// step k (rule 1 and 2 of Follow): the pairs of prev (tracker → reference)
+// still closer than the cut-off are kept, the rest are assigned optimally.
+// It returns, for each of rs, its index in ts or −1.
+func matchStep(rs, ts []*track, k int, prev map[string]string, c2 float64) ([]int, error) {
+	r2c := make([]int, len(rs))
+	for i := range r2c {
+		r2c[i] = -1
+	}
+	takenT := make([]bool, len(ts))
+	if len(prev) > 0 {
+		row := make(map[string]int, len(rs))
+		for i, r := range rs {
+			row[r.name] = i
+		}
+		for j, t := range ts {
+			r, was := prev[t.name]
+			if !was {
+				continue
+			}
+			i, ok := row[r]
+			if !ok {
+				continue
+			}
+			if capped(rs[i].pos[k], t.pos[k], c2) < c2 {
+				r2c[i], takenT[j] = j, true
+			}
+		}
+	}
+	var freeR, freeT []int
+	for i := range rs {
+		if r2c[i] < 0 {
+			freeR = append(freeR, i)
+		}
+	}
+	for j := range ts {
+		if !takenT[j] {
+			freeT = append(freeT, j)
+		}
+	}
+	save := make([]float64, len(freeR)*len(freeT))
+	for a, i := range freeR {
+		for b, j := range freeT {
+			s := capped(rs[i].pos[k], ts[j].pos[k], c2) - c2
+			if !(s < 0) {
+				s = math.Inf(1)
+			}
+			save[a*len(freeT)+b] = s
+		}
+	}
+	sub, err := solveOpen(save, len(freeR), len(freeT))
+	if err != nil {
+		return nil, err
+	}
+	for a, b := range sub {
+		if b >= 0 {
+			r2c[freeR[a]] = freeT[b]
+		}
+	}
+	return r2c, nil
 }

@@ -415,3 +415,91 @@ func BenchmarkFollow(b *testing.B) {
 		}
 	}
 }
+
+// TestFollowKeepsPairs checks the correspondence rule of CLEAR MOT (K.
+// Bernardin, R. Stiefelhagen, "Evaluating multiple object tracking
+// performance: the CLEAR MOT metrics", EURASIP J. Image and Video
+// Processing, 2008, §2.1): a pair of the previous step is kept while its
+// distance stays within the cut-off, and only a partner change beyond it
+// is a mismatch. The runs are invented: two pilot boats passing each other
+// in a channel, seen by a harbour radar.
+func TestFollowKeepsPairs(t *testing.T) {
+	est := func(name string, x, y float64) mot.Estimate {
+		return mot.Estimate{Track: name, Mean: []float64{x, y}}
+	}
+	// The boats pass 1 m apart, heading opposite ways, at step 2.
+	var passing []mot.Frame
+	for k := 0; k < 5; k++ {
+		x := float64(k)
+		passing = append(passing, mot.Frame{Step: k, Tracks: []mot.Estimate{est("pilot-a", x, 0), est("pilot-b", 4-x, 1)}})
+	}
+	// The tracker follows each boat, but at the pass its estimates are
+	// pulled towards the other boat: at step 2 r1 is 0.91 m from pilot-a
+	// and 0.14 m from pilot-b, so the cheapest matching of that step on its
+	// own swaps the partners (cost 0.02 + 0.02 against 0.82 + 0.82).
+	var tracked []mot.Frame
+	for k := 0; k < 5; k++ {
+		x := float64(k)
+		a, b := est("r1", x+0.1, 0.1), est("r2", 4-x-0.1, 0.9)
+		if k == 2 {
+			a, b = est("r1", 2.1, 0.9), est("r2", 1.9, 0.1)
+		}
+		tracked = append(tracked, mot.Frame{Step: k, Tracks: []mot.Estimate{a, b}})
+	}
+	// A real swap: the tracker's tracks trade the boats at step 3 while
+	// the boats are 20 m apart, far beyond the cut-off.
+	var apart, swapped []mot.Frame
+	for k := 0; k < 5; k++ {
+		x := float64(k)
+		apart = append(apart, mot.Frame{Step: k, Tracks: []mot.Estimate{est("pilot-a", x, 0), est("pilot-b", x, 20)}})
+		ya, yb := 0.2, 19.8
+		if k >= 3 {
+			ya, yb = yb, ya
+		}
+		swapped = append(swapped, mot.Frame{Step: k, Tracks: []mot.Estimate{est("r1", x, ya), est("r2", x, yb)}})
+	}
+	o := Options{Position: []int{0, 1}, Cutoff: 5}
+	tests := []struct {
+		name      string
+		want, got []mot.Frame
+		pairsAt2  map[string]string
+		switches  []Switch
+	}{
+		{"pass within the cut-off", passing, tracked,
+			map[string]string{"r1": "pilot-a", "r2": "pilot-b"}, nil},
+		{"swap beyond the cut-off", apart, swapped,
+			map[string]string{"r1": "pilot-a", "r2": "pilot-b"}, []Switch{
+				{3, TrackSwitch, "r1", "pilot-a", "pilot-b"},
+				{3, TrackSwitch, "r2", "pilot-b", "pilot-a"},
+				{3, ObjectSwitch, "pilot-a", "r1", "r2"},
+				{3, ObjectSwitch, "pilot-b", "r2", "r1"},
+			}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			f, err := Follow(tt.want, tt.got, o)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if diff := cmp.Diff(tt.pairsAt2, f.Pairs[2].Pairs); diff != "" {
+				t.Errorf("pairs at step 2 (-want +got):\n%s", diff)
+			}
+			if diff := cmp.Diff(tt.switches, f.Switches); diff != "" {
+				t.Errorf("switches (-want +got):\n%s", diff)
+			}
+			if len(f.Lone) != 0 {
+				t.Errorf("lone tracks %v, want none", f.Lone)
+			}
+		})
+	}
+	// Step 2 of the pass on its own (no previous step) is matched by the
+	// optimal assignment, which swaps: the keeping above is what prevents
+	// the switch, not the geometry.
+	alone, err := Follow(passing[2:3], tracked[2:3], o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if diff := cmp.Diff(map[string]string{"r1": "pilot-b", "r2": "pilot-a"}, alone.Pairs[0].Pairs); diff != "" {
+		t.Errorf("step 2 alone (-want +got):\n%s", diff)
+	}
+}
