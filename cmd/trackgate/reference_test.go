@@ -95,3 +95,50 @@ func TestReferenceUsageAndBadInput(t *testing.T) {
 		t.Errorf("reference on empty input: exit %d, want 0", code)
 	}
 }
+
+// TestReferenceRefusesBadStart checks that the reference refuses a start
+// message whose model it cannot serve before it replies ready: exit 3, a
+// message naming line and field, nothing on standard output. The lines
+// are the example start of harness/PROTOCOL.md with one field changed.
+func TestReferenceRefusesBadStart(t *testing.T) {
+	const good = `{"type":"start","protocol":1,"run":{"scenario":"marina-entrance","scenario_hash":"5d1e","index":0,"seed":7301,"steps":1},` +
+		`"model":{"state_dim":4,"meas_dim":2,"interval":1,"F":[[1,1,0,0],[0,1,0,0],[0,0,1,1],[0,0,0,1]],` +
+		`"Q":[[0.025,0.05,0,0],[0.05,0.1,0,0],[0,0,0.025,0.05],[0,0,0.05,0.1]],"H":[[1,0,0,0],[0,0,1,0]],"R":[[4,0],[0,4]],` +
+		`"detect_prob":0.9,"clutter_mean":2,"clutter_density":2e-06,"clutter_min":[-500,-500],"clutter_max":[500,500],"gate_prob":0.99},` +
+		`"objects":[{"id":"skiff","mean":[-120,3,40,-1],"cov":[[25,0,0,0],[0,1,0,0],[0,0,25,0],[0,0,0,1]],"appear":0,"disappear":null}]}`
+	tests := []struct {
+		name, old, new, want string // want "" for a good start
+	}{
+		{name: "good"},
+		// A diagonal matrix's eigenvalues are its diagonal entries; the
+		// eigenvalues of [[a, b], [b, a]] are a ± b (closed form, common
+		// practice).
+		{name: "negative R", old: `"R":[[4,0],[0,4]]`, new: `"R":[[-4,0],[0,4]]`, want: "stdin:1: model.R: not positive definite"},
+		{name: "indefinite R", old: `"R":[[4,0],[0,4]]`, new: `"R":[[1,2],[2,1]]`, want: "stdin:1: model.R: not positive definite"},
+		{name: "wrong-sized H", old: `"H":[[1,0,0,0],[0,0,1,0]]`, new: `"H":[[1,0,0],[0,0,1]]`, want: "stdin:1: model.H: 2×3"},
+		{name: "wrong-sized F", old: `"F":[[1,1,0,0],[0,1,0,0],[0,0,1,1],[0,0,0,1]]`, new: `"F":[[1,1],[0,1]]`, want: "stdin:1: model.F: 2×2"},
+		{name: "gate probability 1", old: `"gate_prob":0.99`, new: `"gate_prob":1`, want: "stdin:1: model.gate_prob"},
+	}
+	defer func(r io.Reader) { referenceInput = r }(referenceInput)
+	for _, tt := range tests {
+		line := good
+		if tt.old != "" {
+			if !strings.Contains(good, tt.old) {
+				t.Fatalf("%s: %s not in the start line", tt.name, tt.old)
+			}
+			line = strings.Replace(good, tt.old, tt.new, 1)
+		}
+		referenceInput = strings.NewReader(line + "\n" + `{"type":"scan","step":0,"time":0,"detections":[]}` + "\n" + `{"type":"stop"}` + "\n")
+		var out, errs bytes.Buffer
+		code := run([]string{"reference"}, &out, &errs)
+		if tt.want == "" {
+			if code != exitPass || !strings.HasPrefix(out.String(), `{"type":"ready"`) {
+				t.Errorf("%s: exit %d, stdout %q, stderr %q; want exit 0 after ready", tt.name, code, out.String(), errs.String())
+			}
+			continue
+		}
+		if code != exitTracker || !strings.HasPrefix(errs.String(), "trackgate reference: "+tt.want) || out.Len() != 0 {
+			t.Errorf("%s: exit %d, stdout %q, stderr %q; want exit %d, no output, and %q", tt.name, code, out.String(), errs.String(), exitTracker, tt.want)
+		}
+	}
+}
