@@ -46,6 +46,20 @@ type Config struct {
 	// PerScenario are applied in order to scenarios whose name matches.
 	PerScenario []Override
 	Gates       []Gate
+	// Scoring sets the metrics' parameters.
+	Scoring Scoring
+	// GoldenRuns is the number of leading runs of each scenario that have
+	// golden files; 0 means the runner's default (3).
+	GoldenRuns int
+}
+
+// Scoring holds the parameters of the metrics (the "metrics" section).
+type Scoring struct {
+	// Order is the GOSPA order p ≥ 1; 0 means 2.
+	Order float64
+	// Cutoff is the GOSPA cut-off c in metres, also the farthest a track
+	// may be from an object it follows; 0 means the runner's default.
+	Cutoff float64
 }
 
 // Tracker is how to start and drive the tracker under test.
@@ -111,6 +125,8 @@ type Override struct {
 	Tolerance *Tolerance
 	// TieMargin, if set, replaces the project-wide margin.
 	TieMargin *float64
+	// GoldenRuns, if set, replaces the project-wide golden run count.
+	GoldenRuns *int
 }
 
 // Gate is a pass/fail rule on one metric.
@@ -240,4 +256,17 @@ func Load(path string) (Config, error) {
 		return Config{}, err
 	}
 	return Parse(path, data)
+}
+
+// GoldenRunsFor returns the golden run count for the named scenario: the
+// last matching override's, else the project's; 0 means the runner's
+// default.
+func (c Config) GoldenRunsFor(scenario string) int {
+	n := c.GoldenRuns
+	for _, o := range c.PerScenario {
+		if ok, _ := path.Match(o.Match, scenario); ok && o.GoldenRuns != nil {
+			n = *o.GoldenRuns
+		}
+	}
+	return n
 }

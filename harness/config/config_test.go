@@ -155,7 +155,7 @@ func TestParseErrors(t *testing.T) {
 		{"override bad pattern", "per_scenario:\n  - {match: \"[\", tie_margin: 1}\n", `p.yaml:2:13: per_scenario[0].match: expected a pattern on scenario names, got "["`},
 		{"override underscore", "per_scenario:\n  - {match: \"clutter_*\", tie_margin: 1}\n", `p.yaml:2:13: per_scenario[0].match: pattern "clutter_*" can never match a scenario name`},
 		{"override capitals", "per_scenario:\n  - match: Quay*\n    tie_margin: 1\n", `p.yaml:2:12: per_scenario[0].match: pattern "Quay*" can never match a scenario name`},
-		{"override empty", "per_scenario:\n  - {match: x}\n", `per_scenario[0]: an override needs "tolerance" or "tie_margin"`},
+		{"override empty", "per_scenario:\n  - {match: x}\n", `per_scenario[0]: an override needs "tolerance", "tie_margin" or "golden_runs"`},
 		{"scenarios glob", "scenarios: [\"a[\"]\n", `p.yaml:1:13: scenarios[0]: expected a file glob, got "a["`},
 		{"scenarios type", "scenarios: all\n", `p.yaml:1:12: scenarios: expected a list of a file glob, got "all"`},
 		{"gate metric", "gates:\n  - limit: 3\n", `p.yaml:2:5: gates[0]: missing key "metric"`},

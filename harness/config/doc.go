@@ -44,6 +44,14 @@
 //	  - match: "clutter-*"         # path.Match pattern on the scenario name
 //	    tolerance: {mean: {abs: 1e-4}}
 //	    tie_margin: 1e-6
+//	    golden_runs: 5             # replaces golden_runs for these scenarios
+//
+//	golden_runs: 3                 # leading runs of each scenario with golden files; default 3
+//
+//	metrics:
+//	  order: 2                     # GOSPA order p ≥ 1; default 2 (α is always 2)
+//	  cutoff: 20                   # GOSPA cut-off c in metres, also the farthest a
+//	                               # track may be from an object it follows; default 20
 //
 //	gates:                         # metric gates
 //	  - metric: gospa              # metric name

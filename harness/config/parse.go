@@ -235,7 +235,7 @@ func Parse(name string, data []byte) (Config, error) {
 }
 
 func (w *walker) config(n *yaml.Node, c *Config) {
-	m, ok := w.mapping(n, "", "format", "tracker", "scenarios", "golden_dir", "tolerance", "tie_margin", "per_scenario", "gates")
+	m, ok := w.mapping(n, "", "format", "tracker", "scenarios", "golden_dir", "tolerance", "tie_margin", "per_scenario", "gates", "metrics", "golden_runs")
 	if !ok {
 		return
 	}
@@ -274,6 +274,35 @@ func (w *walker) config(n *yaml.Node, c *Config) {
 	if v := m["gates"]; v != nil {
 		c.Gates = w.gates(v, "gates")
 	}
+	if v := m["metrics"]; v != nil {
+		if mm, ok := w.mapping(v, "metrics", "order", "cutoff"); ok {
+			if x := mm["order"]; x != nil {
+				c.Scoring.Order, _ = w.float(x, "metrics.order", "a GOSPA order ≥ 1", 1, 1e6, false, false)
+			}
+			if x := mm["cutoff"]; x != nil {
+				c.Scoring.Cutoff, _ = w.float(x, "metrics.cutoff", "a cut-off in metres > 0", 0, 1e150, true, false)
+			}
+		}
+	}
+	if v := m["golden_runs"]; v != nil {
+		if n, ok := w.goldenRuns(v, "golden_runs"); ok {
+			c.GoldenRuns = n
+		}
+	}
+}
+
+// goldenRuns reads a golden run count: a whole number from 1 to 1000.
+func (w *walker) goldenRuns(n *yaml.Node, p string) (int, bool) {
+	const want = "a whole number of runs from 1 to 1000"
+	if !w.scalar(n, p, want, "!!int") {
+		return 0, false
+	}
+	v, err := strconv.Atoi(strings.ReplaceAll(n.Value, "_", ""))
+	if err != nil || v < 1 || v > 1000 {
+		w.errAt(n, p, "expected %s, got %s", want, n.Value)
+		return 0, false
+	}
+	return v, true
 }
 
 func (w *walker) tracker(n *yaml.Node, t *Tracker) {
@@ -405,7 +434,7 @@ func (w *walker) overrides(n *yaml.Node, p string) []Override {
 	var out []Override
 	for i, e := range n.Content {
 		ip := index(p, i)
-		m, ok := w.mapping(e, ip, "match", "tolerance", "tie_margin")
+		m, ok := w.mapping(e, ip, "match", "tolerance", "tie_margin", "golden_runs")
 		if !ok {
 			continue
 		}
@@ -429,8 +458,13 @@ func (w *walker) overrides(n *yaml.Node, p string) []Override {
 				o.TieMargin = &f
 			}
 		}
-		if m["tolerance"] == nil && m["tie_margin"] == nil {
-			w.errAt(e, ip, `an override needs "tolerance" or "tie_margin"`)
+		if v := m["golden_runs"]; v != nil {
+			if n, ok := w.goldenRuns(v, join(ip, "golden_runs")); ok {
+				o.GoldenRuns = &n
+			}
+		}
+		if m["tolerance"] == nil && m["tie_margin"] == nil && m["golden_runs"] == nil {
+			w.errAt(e, ip, `an override needs "tolerance", "tie_margin" or "golden_runs"`)
 		}
 		out = append(out, o)
 	}
