@@ -19,15 +19,8 @@ import (
 	"trackgate/harness/internal/yamlpos"
 )
 
-// walker collects errors while walking the YAML tree.
-type walker struct {
-	file string
-	errs ErrorList
-}
-
-func (w *walker) errAt(n *yaml.Node, p, format string, args ...any) {
-	w.errs = append(w.errs, yamlpos.At(w.file, n, p, format, args...))
-}
+// walker checks the YAML tree, collecting errors.
+type walker struct{ yamlpos.Collector }
 
 // The shared path and message helpers, under the names the walker uses.
 var (
@@ -40,18 +33,18 @@ var (
 // keys (with a suggestion), duplicate keys and non-string keys.
 func (w *walker) mapping(n *yaml.Node, p string, known ...string) (map[string]*yaml.Node, bool) {
 	if n.Kind != yaml.MappingNode {
-		w.errAt(n, p, "expected a mapping with keys %s, got %s", strings.Join(known, ", "), describe(n))
+		w.ErrAt(n, p, "expected a mapping with keys %s, got %s", strings.Join(known, ", "), describe(n))
 		return nil, false
 	}
 	out := map[string]*yaml.Node{}
 	for i := 0; i+1 < len(n.Content); i += 2 {
 		k, v := n.Content[i], n.Content[i+1]
 		if k.Kind != yaml.ScalarNode || k.ShortTag() != "!!str" {
-			w.errAt(k, p, "expected a plain key, got %s", describe(k))
+			w.ErrAt(k, p, "expected a plain key, got %s", describe(k))
 			continue
 		}
 		if _, dup := out[k.Value]; dup {
-			w.errAt(k, join(p, k.Value), "key given twice")
+			w.ErrAt(k, join(p, k.Value), "key given twice")
 			continue
 		}
 		ok := false
@@ -63,7 +56,7 @@ func (w *walker) mapping(n *yaml.Node, p string, known ...string) (map[string]*y
 			if s := yamlpos.Suggest(k.Value, known); s != "" {
 				msg = fmt.Sprintf("unknown key %q; did you mean %q?", k.Value, s)
 			}
-			w.errAt(k, p, "%s", msg)
+			w.ErrAt(k, p, "%s", msg)
 			continue
 		}
 		out[k.Value] = v
@@ -79,7 +72,7 @@ func (w *walker) scalar(n *yaml.Node, p, want string, tags ...string) bool {
 			}
 		}
 	}
-	w.errAt(n, p, "expected %s, got %s", want, describe(n))
+	w.ErrAt(n, p, "expected %s, got %s", want, describe(n))
 	return false
 }
 
@@ -93,7 +86,7 @@ func (w *walker) str(n *yaml.Node, p, want string) (string, bool) {
 func (w *walker) nonEmpty(n *yaml.Node, p, want string) (string, bool) {
 	s, ok := w.str(n, p, want)
 	if ok && s == "" {
-		w.errAt(n, p, "expected %s, got an empty string", want)
+		w.ErrAt(n, p, "expected %s, got an empty string", want)
 		return "", false
 	}
 	return s, ok
@@ -114,12 +107,12 @@ func (w *walker) float(n *yaml.Node, p, want string, lo, hi float64, loOpen, hiO
 		case ".nan":
 			v = math.NaN()
 		default:
-			w.errAt(n, p, "expected %s, got %s", want, describe(n))
+			w.ErrAt(n, p, "expected %s, got %s", want, describe(n))
 			return 0, false
 		}
 	}
 	if math.IsNaN(v) || v < lo || v > hi || (loOpen && v == lo) || (hiOpen && v == hi) {
-		w.errAt(n, p, "expected %s, got %s", want, n.Value)
+		w.ErrAt(n, p, "expected %s, got %s", want, n.Value)
 		return 0, false
 	}
 	return v, true
@@ -131,7 +124,7 @@ func (w *walker) boolean(n *yaml.Node, p string) (bool, bool) {
 	}
 	b, err := strconv.ParseBool(strings.ToLower(n.Value))
 	if err != nil {
-		w.errAt(n, p, "expected true or false, got %s", describe(n))
+		w.ErrAt(n, p, "expected true or false, got %s", describe(n))
 		return false, false
 	}
 	return b, true
@@ -144,7 +137,7 @@ func (w *walker) duration(n *yaml.Node, p string) (time.Duration, bool) {
 	}
 	d, err := time.ParseDuration(n.Value)
 	if err != nil || d <= 0 {
-		w.errAt(n, p, "expected %s, got %s", want, describe(n))
+		w.ErrAt(n, p, "expected %s, got %s", want, describe(n))
 		return 0, false
 	}
 	return d, true
@@ -152,7 +145,7 @@ func (w *walker) duration(n *yaml.Node, p string) (time.Duration, bool) {
 
 func (w *walker) strList(n *yaml.Node, p, want string) ([]string, bool) {
 	if n.Kind != yaml.SequenceNode {
-		w.errAt(n, p, "expected a list of %s, got %s", want, describe(n))
+		w.ErrAt(n, p, "expected a list of %s, got %s", want, describe(n))
 		return nil, false
 	}
 	out := make([]string, 0, len(n.Content))
@@ -170,12 +163,12 @@ func (w *walker) strList(n *yaml.Node, p, want string) ([]string, bool) {
 func (w *walker) reportAliases(n *yaml.Node, p string) {
 	switch n.Kind {
 	case yaml.AliasNode:
-		w.errAt(n, p, "YAML aliases (*%s) are not supported; write the value out", n.Value)
+		w.ErrAt(n, p, "YAML aliases (*%s) are not supported; write the value out", n.Value)
 	case yaml.MappingNode:
 		for i := 0; i+1 < len(n.Content); i += 2 {
 			k, v := n.Content[i], n.Content[i+1]
 			if k.Kind == yaml.ScalarNode && k.Value == "<<" && k.ShortTag() == "!!merge" {
-				w.errAt(k, p, "YAML merge keys (<<) are not supported; write the keys out")
+				w.ErrAt(k, p, "YAML merge keys (<<) are not supported; write the keys out")
 				continue
 			}
 			w.reportAliases(v, join(p, k.Value))
@@ -192,7 +185,7 @@ var lineRE = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
 // Parse reads a project file's content; name is used in errors and as
 // Config.File. Errors are an ErrorList. Empty content gives the defaults.
 func Parse(name string, data []byte) (Config, error) {
-	w := &walker{file: name}
+	w := &walker{yamlpos.Collector{File: name}}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var doc yaml.Node
 	err := dec.Decode(&doc)
@@ -223,13 +216,13 @@ func Parse(name string, data []byte) (Config, error) {
 		root := doc.Content[0]
 		if !(root.Kind == yaml.ScalarNode && root.ShortTag() == "!!null") {
 			w.reportAliases(root, "")
-			if len(w.errs) == 0 {
+			if len(w.Errs) == 0 {
 				w.config(root, &c)
 			}
 		}
 	}
-	if len(w.errs) > 0 {
-		return Config{}, w.errs.Sort()
+	if len(w.Errs) > 0 {
+		return Config{}, w.Errs.Sort()
 	}
 	return c, nil
 }
@@ -241,7 +234,7 @@ func (w *walker) config(n *yaml.Node, c *Config) {
 	}
 	if v := m["format"]; v != nil {
 		if f, ok := w.float(v, "format", "format version 1", 1, 1, false, false); ok && f != FormatVersion {
-			w.errAt(v, "format", "expected format version 1")
+			w.ErrAt(v, "format", "expected format version 1")
 		}
 	}
 	if v := m["tracker"]; v != nil {
@@ -251,7 +244,7 @@ func (w *walker) config(n *yaml.Node, c *Config) {
 		if globs, ok := w.strList(v, "scenarios", "a file glob"); ok {
 			for i, g := range globs {
 				if _, err := filepath.Match(g, ""); err != nil {
-					w.errAt(v.Content[i], index("scenarios", i), "expected a file glob, got %q: %v", g, err)
+					w.ErrAt(v.Content[i], index("scenarios", i), "expected a file glob, got %q: %v", g, err)
 				}
 			}
 			c.Scenarios = globs
@@ -299,7 +292,7 @@ func (w *walker) goldenRuns(n *yaml.Node, p string) (int, bool) {
 	}
 	v, err := strconv.Atoi(strings.ReplaceAll(n.Value, "_", ""))
 	if err != nil || v < 1 || v > 1000 {
-		w.errAt(n, p, "expected %s, got %s", want, n.Value)
+		w.ErrAt(n, p, "expected %s, got %s", want, n.Value)
 		return 0, false
 	}
 	return v, true
@@ -314,7 +307,7 @@ func (w *walker) tracker(n *yaml.Node, t *Tracker) {
 	if v := m["name"]; v != nil {
 		if s, ok := w.nonEmpty(v, join(p, "name"), "a tracker name"); ok {
 			if !golden.ValidName(s) {
-				w.errAt(v, join(p, "name"), "expected a name of letters, digits, '.', '_' and '-' not starting with '.' or '-' (it names a golden folder), got %q", s)
+				w.ErrAt(v, join(p, "name"), "expected a name of letters, digits, '.', '_' and '-' not starting with '.' or '-' (it names a golden folder), got %q", s)
 			} else {
 				t.Name = s
 			}
@@ -323,14 +316,14 @@ func (w *walker) tracker(n *yaml.Node, t *Tracker) {
 	if v := m["command"]; v != nil {
 		if argv, ok := w.strList(v, join(p, "command"), "a command-line argument"); ok {
 			if len(argv) == 0 {
-				w.errAt(v, join(p, "command"), "expected the program and its arguments, got an empty list")
+				w.ErrAt(v, join(p, "command"), "expected the program and its arguments, got an empty list")
 			}
 			t.Command = argv
 		}
 	}
 	if v := m["env"]; v != nil {
 		if v.Kind != yaml.MappingNode {
-			w.errAt(v, join(p, "env"), "expected a mapping of variable names to values, got %s", describe(v))
+			w.ErrAt(v, join(p, "env"), "expected a mapping of variable names to values, got %s", describe(v))
 		} else {
 			t.Env = map[string]string{}
 			for i := 0; i+1 < len(v.Content); i += 2 {
@@ -341,17 +334,17 @@ func (w *walker) tracker(n *yaml.Node, t *Tracker) {
 					continue
 				}
 				if name == "" || strings.ContainsAny(name, "=\x00") {
-					w.errAt(k, kp, "expected a variable name without '=', got %q", name)
+					w.ErrAt(k, kp, "expected a variable name without '=', got %q", name)
 					continue
 				}
 				if _, dup := t.Env[name]; dup {
-					w.errAt(k, kp, "variable given twice")
+					w.ErrAt(k, kp, "variable given twice")
 					continue
 				}
 				// Numbers and booleans are taken as written.
 				if w.scalar(val, kp, "a value", "!!str", "!!int", "!!float", "!!bool") {
 					if strings.ContainsRune(val.Value, 0) {
-						w.errAt(val, kp, "expected a value without NUL bytes")
+						w.ErrAt(val, kp, "expected a value without NUL bytes")
 						continue
 					}
 					t.Env[name] = val.Value
@@ -389,7 +382,7 @@ func (w *walker) tolerance(n *yaml.Node, p string, t *Tolerance) {
 	if v := m["profile"]; v != nil {
 		if s, ok := w.str(v, join(p, "profile"), "a profile name"); ok {
 			if _, found := compare.Lookup(s); !found {
-				w.errAt(v, join(p, "profile"), "expected one of %s, got %q", strings.Join(compare.ProfileNames(), ", "), s)
+				w.ErrAt(v, join(p, "profile"), "expected one of %s, got %q", strings.Join(compare.ProfileNames(), ", "), s)
 			} else {
 				t.Profile = s
 			}
@@ -418,7 +411,7 @@ func (w *walker) rule(n *yaml.Node, p string, r *RulePatch) {
 		if w.scalar(v, join(p, "ulps"), "a whole number of ULPs ≥ 0", "!!int") {
 			u, err := strconv.ParseUint(strings.ReplaceAll(v.Value, "_", ""), 0, 64)
 			if err != nil {
-				w.errAt(v, join(p, "ulps"), "expected a whole number of ULPs ≥ 0, got %s", describe(v))
+				w.ErrAt(v, join(p, "ulps"), "expected a whole number of ULPs ≥ 0, got %s", describe(v))
 			} else {
 				r.ULPs = &u
 			}
@@ -428,7 +421,7 @@ func (w *walker) rule(n *yaml.Node, p string, r *RulePatch) {
 
 func (w *walker) overrides(n *yaml.Node, p string) []Override {
 	if n.Kind != yaml.SequenceNode {
-		w.errAt(n, p, "expected a list of overrides, got %s", describe(n))
+		w.ErrAt(n, p, "expected a list of overrides, got %s", describe(n))
 		return nil
 	}
 	var out []Override
@@ -440,12 +433,12 @@ func (w *walker) overrides(n *yaml.Node, p string) []Override {
 		}
 		var o Override
 		if v := m["match"]; v == nil {
-			w.errAt(e, ip, `missing key "match" (a pattern on scenario names)`)
+			w.ErrAt(e, ip, `missing key "match" (a pattern on scenario names)`)
 		} else if s, ok := w.nonEmpty(v, join(ip, "match"), "a pattern on scenario names"); ok {
 			if _, err := path.Match(s, ""); err != nil {
-				w.errAt(v, join(ip, "match"), "expected a pattern on scenario names, got %q: %v", s, err)
+				w.ErrAt(v, join(ip, "match"), "expected a pattern on scenario names, got %q: %v", s, err)
 			} else if shortestName(s) < 0 {
-				w.errAt(v, join(ip, "match"), "pattern %q can never match a scenario name (%s); expected a pattern such as \"clutter-*\"", s, nameRule)
+				w.ErrAt(v, join(ip, "match"), "pattern %q can never match a scenario name (%s); expected a pattern such as \"clutter-*\"", s, nameRule)
 			}
 			o.Match, o.Line, o.Col = s, v.Line, v.Column
 		}
@@ -464,7 +457,7 @@ func (w *walker) overrides(n *yaml.Node, p string) []Override {
 			}
 		}
 		if m["tolerance"] == nil && m["tie_margin"] == nil && m["golden_runs"] == nil {
-			w.errAt(e, ip, `an override needs "tolerance", "tie_margin" or "golden_runs"`)
+			w.ErrAt(e, ip, `an override needs "tolerance", "tie_margin" or "golden_runs"`)
 		}
 		out = append(out, o)
 	}
@@ -473,7 +466,7 @@ func (w *walker) overrides(n *yaml.Node, p string) []Override {
 
 func (w *walker) gates(n *yaml.Node, p string) []Gate {
 	if n.Kind != yaml.SequenceNode {
-		w.errAt(n, p, "expected a list of gates, got %s", describe(n))
+		w.ErrAt(n, p, "expected a list of gates, got %s", describe(n))
 		return nil
 	}
 	var out []Gate
@@ -485,7 +478,7 @@ func (w *walker) gates(n *yaml.Node, p string) []Gate {
 		}
 		var g Gate
 		if v := m["metric"]; v == nil {
-			w.errAt(e, ip, `missing key "metric" (a metric name)`)
+			w.ErrAt(e, ip, `missing key "metric" (a metric name)`)
 		} else if s, ok := w.nonEmpty(v, join(ip, "metric"), "a metric name"); ok {
 			g.Metric = s
 		}
@@ -496,7 +489,7 @@ func (w *walker) gates(n *yaml.Node, p string) []Gate {
 				case "lower":
 					g.LowerIsWorse = true
 				default:
-					w.errAt(v, join(ip, "worse"), `expected "higher" or "lower", got %q`, s)
+					w.ErrAt(v, join(ip, "worse"), `expected "higher" or "lower", got %q`, s)
 				}
 			}
 		}
@@ -510,7 +503,7 @@ func (w *walker) gates(n *yaml.Node, p string) []Gate {
 			if pm, ok := w.mapping(v, pp, "confidence", "min_effect"); ok {
 				var pr Paired
 				if c := pm["confidence"]; c == nil {
-					w.errAt(v, pp, `missing key "confidence" (a level in (0, 1))`)
+					w.ErrAt(v, pp, `missing key "confidence" (a level in (0, 1))`)
 				} else {
 					pr.Confidence, _ = w.float(c, join(pp, "confidence"), "a confidence level in (0, 1)", 0, 1, true, true)
 				}
@@ -521,7 +514,7 @@ func (w *walker) gates(n *yaml.Node, p string) []Gate {
 			}
 		}
 		if m["limit"] == nil && m["paired"] == nil {
-			w.errAt(e, ip, `a gate needs "limit", "paired" or both`)
+			w.ErrAt(e, ip, `a gate needs "limit", "paired" or both`)
 		}
 		out = append(out, g)
 	}

@@ -79,3 +79,16 @@ func (l ErrorList) Sort() ErrorList {
 func (l ErrorList) Compact() ErrorList {
 	return slices.CompactFunc(l, func(a, b *Error) bool { return *a == *b })
 }
+
+// Collector gathers the errors of one file while its node tree is checked.
+type Collector struct {
+	// File names the file in every error.
+	File string
+	// Errs holds the errors in the order they were found.
+	Errs ErrorList
+}
+
+// ErrAt records the error At(c.File, n, path, format, args...).
+func (c *Collector) ErrAt(n *yaml.Node, path, format string, args ...any) {
+	c.Errs = append(c.Errs, At(c.File, n, path, format, args...))
+}

@@ -219,3 +219,14 @@ func BenchmarkSuggest(b *testing.B) {
 		}
 	}
 }
+
+func TestCollector(t *testing.T) {
+	n := node(t, "golden_dir: [blessed]\n")
+	c := Collector{File: "quay.yaml"}
+	c.ErrAt(n.Content[1], "golden_dir", "expected a folder path, got %s", DescribeText(n.Content[1]))
+	c.ErrAt(nil, "", "too many errors")
+	want := "quay.yaml:1:13: golden_dir: expected a folder path, got a list\nquay.yaml: too many errors"
+	if got := c.Errs.Error(); got != want {
+		t.Errorf("Errs = %q, want %q", got, want)
+	}
+}
