@@ -17,11 +17,12 @@
 // neither side is privileged, and swapping them must not change the answer.
 // This is a magnitude-scaled variant of Knuth's "approximately equal" (≈)
 // relation (D. E. Knuth, The Art of Computer Programming, vol. 2,
-// Seminumerical Algorithms, 3rd ed., 1998, §4.2.2). Knuth scales ε by
+// Seminumerical Algorithms, 3rd ed., 1997, §4.2.2). Knuth scales ε by
 // b^max(e_u, e_v), a power of the radix b set by the larger floating-point
 // exponent, so his bound is constant across a binade and jumps by a factor
 // b at each power of b; with normalised fractions in [1/b, 1) that power
-// lies in (M, b·M], so Knuth's bound is up to b (= 2 here) times looser
+// lies in (M, b·M] (derived here from the normalised representation
+// u = f·b^e, 1/b ≤ |f| < 1), so Knuth's bound is up to b (= 2 here) times looser
 // than Rel·M for the same ε. This package scales by the magnitude M
 // itself, which is continuous in the values and does not depend on how
 // they are represented. Knuth's "essentially equal" (~) takes the smaller
@@ -68,6 +69,10 @@
 //   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
 //     optimal sub-pattern assignment metric", FUSION 2017 (cut-off distance
 //     min(d, c) and the c^p/2 cost of an unmatched point for α = 2).
+//   - K. Bernardin, R. Stiefelhagen, "Evaluating multiple object tracking
+//     performance: the CLEAR MOT metrics", EURASIP J. Image and Video
+//     Processing, 2008, §2.1 (correspondences kept while within the
+//     threshold; mismatches counted when a partner changes).
 //   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric on
 //     the space of finite sets of trajectories for evaluation of
 //     multi-target tracking algorithms", IEEE Trans. Signal Processing 68,
