@@ -31,8 +31,9 @@ const referenceVersion = "1"
 var referenceInput io.Reader = os.Stdin
 
 // runReference serves runs until its input ends. Exit 0 at the end of
-// input, 2 for bad flags, 3 when the input breaks the protocol or the
-// reference fails on a run.
+// input, 2 for bad flags, 3 when the input breaks the protocol, a start
+// message fails protocol.Start.Validate (refused before the ready reply,
+// with the line and field named), or the reference fails on a run.
 func runReference(args []string, stdout, stderr io.Writer) int {
 	c := commands["reference"]
 	fs := newFlags(c, stderr)

@@ -28,5 +28,16 @@
 // Every decoding error is an *Error carrying the source name, the line and
 // column, the field path (tracks[2].mean[1]) and a Kind: Syntax (not JSON),
 // Shape (JSON, but a field is missing or has the wrong type), NonFinite, or
-// TooLong (a line over the size cap).
+// TooLong (a line over the size cap). A string holding invalid UTF-8 or an
+// unpaired UTF-16 surrogate escape is a Syntax error naming the field:
+// decoding it would replace the bad bytes with U+FFFD and could make two
+// distinct track ids equal.
+//
+// # Start checks
+//
+// Start.Validate checks a decoded start message's model and objects
+// (shapes, finite and positive (semi-)definite matrices, probability
+// ranges, unique object ids); Serve calls it before it answers ready, so a
+// tracker built on Serve refuses a run it cannot serve instead of failing
+// at its first scan.
 package protocol

@@ -284,8 +284,9 @@ func FuzzParseTracks(f *testing.F) {
 	})
 }
 
-// FuzzParseRequest checks the harness-message decoder never panics and that
-// accepted scans round-trip.
+// FuzzParseRequest checks the harness-message decoder and Start.Validate
+// never panic, that a validated start encodes again, and that accepted
+// scans round-trip.
 func FuzzParseRequest(f *testing.F) {
 	b, _ := AppendStart(nil, harbourStart())
 	f.Add(b)
@@ -293,6 +294,13 @@ func FuzzParseRequest(f *testing.F) {
 	f.Add([]byte(`{"type":"stop"}`))
 	f.Fuzz(func(t *testing.T, line []byte) {
 		r, err := ParseRequest(line)
+		if err == nil && r.Type == TypeStart && r.Start.Validate() == nil {
+			// A start that passes Validate has the shapes the encoder
+			// needs, so it must encode again.
+			if _, err := AppendStart(nil, r.Start); err != nil {
+				t.Fatalf("re-encoding a validated start: %v", err)
+			}
+		}
 		if err != nil || r.Type != TypeScan {
 			return
 		}
