@@ -74,9 +74,9 @@ func addCommon(fs *flag.FlagSet, withAgainst bool) *commonFlags {
 	f.profile = fs.String("profile", "", "tolerance profile instead of the project's: bit-exact, float64-port or float32-port")
 	f.out = fs.String("out", "", "folder for the actual output of failing golden comparisons")
 	f.name = fs.String("name", "", "the tracker's golden folder name (default: tracker.name of the project file)")
-	f.goldenRuns = fs.Int("golden-runs", runner.DefaultGoldenRuns, "leading runs of each scenario that have golden files")
+	f.goldenRuns = fs.Int("golden-runs", 0, fmt.Sprintf("leading runs of each scenario that have golden files (0: golden_runs of the project file, else %d)", runner.DefaultGoldenRuns))
 	f.ci = fs.Bool("ci", false, "CI mode: never write into the golden folder, and a missing golden fails (also when CI=true)")
-	f.cutoff = fs.Float64("cutoff", runner.DefaultCutoff, "GOSPA and track pairing cut-off, metres")
+	f.cutoff = fs.Float64("cutoff", 0, fmt.Sprintf("GOSPA and track pairing cut-off, metres (0: metrics.cutoff of the project file, else %g)", runner.DefaultCutoff))
 	return f
 }
 
@@ -120,8 +120,11 @@ func (f *commonFlags) options(scenarios []string) (runner.Options, error) {
 		}
 		o.Shard = sp
 	}
-	if *f.goldenRuns < 1 {
-		return o, fmt.Errorf("--golden-runs: expected at least 1, got %d", *f.goldenRuns)
+	if *f.goldenRuns < 0 {
+		return o, fmt.Errorf("--golden-runs: expected at least 1 (or 0 for the project's), got %d", *f.goldenRuns)
+	}
+	if *f.cutoff < 0 {
+		return o, fmt.Errorf("--cutoff: expected a positive number of metres (or 0 for the project's), got %g", *f.cutoff)
 	}
 	o.GoldenRuns = *f.goldenRuns
 	o.Profile, o.Out, o.TrackerName, o.CI, o.Cutoff = *f.profile, *f.out, *f.name, *f.ci, *f.cutoff

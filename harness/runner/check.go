@@ -309,8 +309,19 @@ func (s *settings) judge(j *job) {
 	}
 }
 
-// goldenRunsOf is G for one scenario.
-func (s *settings) goldenRunsOf(sc *scen) int { return min(sc.planned, s.gRuns) }
+// goldenRunsOf is G for one scenario: Options.GoldenRuns, else the
+// project's for the scenario, else DefaultGoldenRuns; never more than the
+// scenario's runs.
+func (s *settings) goldenRunsOf(sc *scen) int {
+	g := s.gRuns
+	if g == 0 {
+		g = s.cfg.GoldenRunsFor(sc.spec.Name)
+	}
+	if g <= 0 {
+		g = DefaultGoldenRuns
+	}
+	return min(sc.planned, g)
+}
 
 // assemble builds the suite from the judged jobs.
 func (s *settings) assemble(scens []*scen) *result.Suite {
@@ -349,6 +360,17 @@ func (s *settings) assemble(scens []*scen) *result.Suite {
 		}
 		suite.Scenarios = append(suite.Scenarios, out)
 		suite.Status = result.Worst(suite.Status, out.Status)
+	}
+	var names []string
+	for _, sc := range scens {
+		if sc.spec != nil {
+			names = append(names, sc.spec.Name)
+		}
+	}
+	if len(names) > 0 {
+		for _, e := range s.cfg.UnusedOverrides(names) {
+			suite.Notes = append(suite.Notes, e.Error())
+		}
 	}
 	// The gates were checked by resolve, so Judge cannot fail here.
 	if err := Judge(suite, s.cfg); err != nil {

@@ -61,7 +61,8 @@
 //
 // # Checks against golden files
 //
-// For the first GoldenRuns runs of a scenario (3 by default) the golden
+// For the first G runs of a scenario (Options.GoldenRuns, else golden_runs
+// of the project file, per scenario or project-wide, else 3) the golden
 // folder holds the scan tape, the reference's frames and metrics and, per
 // tracker name, the tracker's frames and metrics (layout in package golden).
 // A stale golden (its scenario file changed) is never compared and makes
@@ -78,8 +79,9 @@
 //
 // # Metrics
 //
-// Per run, on the position components: GOSPA per step (p = 2, α = 2, cut-off
-// c = Options.Cutoff, default DefaultCutoff metres) between the true
+// Per run, on the position components: GOSPA per step (order p =
+// metrics.order of the project file, default 2; α = 2; cut-off c =
+// Options.Cutoff, else metrics.cutoff, else DefaultCutoff metres) between the true
 // positions and the track positions; the per-step matching of that GOSPA
 // maps tracks to objects for the identity switches, false tracks, missed
 // objects and position RMSE of metrics.ScoreRun and for the NEES of matched
@@ -90,6 +92,24 @@
 // (metrics.Paired) against a baseline on the same seeds: the blessed
 // metrics of the tracker when at least two runs have them and goldens are
 // compared, the reference's metrics otherwise.
+//
+// Every run carries in the result what its scenario's summary and gates
+// are computed from: its per-step GOSPA and NEES values (RunMetrics), its
+// whole-run values and the baselines' on the same seed (Run.Values,
+// ReferenceValues, BlessedValues). Judge computes the summaries and gates
+// from those alone, for the scenarios whose runs are all present; Check
+// calls it on its own suite, and trackgate merge on merged shard results,
+// so that shards split run by run merge to the unsharded result byte for
+// byte.
+//
+// # Trackers in process, progress and timing
+//
+// Options.Local runs a tracker written in Go inside the harness (package
+// trackgate/gatetest builds on it for go test). Options.Progress is told as
+// runs finish (ProgressLine draws it on a terminal). Options.Timing
+// records each run's share of the tracker phase in Run.Seconds; it is off
+// by default because it is the one thing that makes two identical checks
+// give different bytes.
 //
 // # Statuses and exit codes
 //

@@ -36,6 +36,9 @@ const (
 	// scenario (common practice: c a few times the localisation error one
 	// is willing to call a match).
 	DefaultCutoff = 20.0
+	// DefaultOrder is the GOSPA order p (α is always 2), the order of
+	// Rahmathullah et al.'s examples (FUSION 2017).
+	DefaultOrder = 2.0
 	// DefaultMaxDiffs caps the differences kept per check.
 	DefaultMaxDiffs = 20
 )
@@ -69,7 +72,9 @@ type Options struct {
 	Profile string
 	// GoldenDir replaces Config.GoldenDir when set.
 	GoldenDir string
-	// GoldenRuns is G (0 means DefaultGoldenRuns).
+	// GoldenRuns, when positive, is G for every scenario; 0 means the
+	// project's (golden_runs, per scenario or project-wide), else
+	// DefaultGoldenRuns.
 	GoldenRuns int
 	// CI forbids writing anything into the golden folder; a missing
 	// golden then fails. It is also set when the environment variable CI
@@ -80,8 +85,9 @@ type Options struct {
 	// Out, if set, is the folder where actual outputs of failing golden
 	// comparisons are left, in the golden layout with ".actual" appended.
 	Out string
-	// Cutoff is the GOSPA and alignment cut-off in metres (0 means
-	// DefaultCutoff).
+	// Cutoff is the GOSPA and alignment cut-off in metres; 0 means the
+	// project's (metrics.cutoff), else DefaultCutoff. The GOSPA order is
+	// the project's metrics.order (DefaultOrder when not set).
 	Cutoff float64
 	// K is the number of hypotheses the reference ranks per scan (0 means
 	// tracker.DefaultK).
@@ -118,6 +124,7 @@ type settings struct {
 	against    Against
 	workers    int
 	cutoff     float64
+	order      float64
 	maxDiffs   int
 	gRuns      int
 	files      []string
@@ -182,7 +189,17 @@ func resolve(o Options, needTracker bool) (*settings, error) {
 	}
 	s.cutoff = o.Cutoff
 	if s.cutoff == 0 {
+		s.cutoff = s.cfg.Scoring.Cutoff
+	}
+	if s.cutoff == 0 {
 		s.cutoff = DefaultCutoff
+	}
+	s.order = s.cfg.Scoring.Order
+	if s.order == 0 {
+		s.order = DefaultOrder
+	}
+	if !(s.order >= 1) || s.order > 1e6 {
+		return nil, fmt.Errorf("metrics.order: expected a GOSPA order ≥ 1, got %g", s.order)
 	}
 	if !(s.cutoff > 0) || s.cutoff > 1e150 {
 		return nil, fmt.Errorf("cutoff: expected a positive number of metres, got %g", o.Cutoff)
@@ -192,8 +209,8 @@ func resolve(o Options, needTracker bool) (*settings, error) {
 		s.maxDiffs = DefaultMaxDiffs
 	}
 	s.gRuns = o.GoldenRuns
-	if s.gRuns <= 0 {
-		s.gRuns = DefaultGoldenRuns
+	if s.gRuns < 0 {
+		return nil, fmt.Errorf("golden runs: expected a positive number, got %d", o.GoldenRuns)
 	}
 	if o.Runs < 0 {
 		return nil, fmt.Errorf("runs: expected a positive number, got %d", o.Runs)
@@ -234,13 +251,13 @@ func resolve(o Options, needTracker bool) (*settings, error) {
 	if len(s.files) == 0 {
 		return nil, fmt.Errorf("no scenario files: the patterns %v match nothing", s.cfg.Scenarios)
 	}
-	reply := max(s.cfg.Tracker.StepTimeout, s.cfg.Tracker.StartTimeout)
 	s.drv = driver.Config{
 		Argv:         s.argv,
 		Env:          s.cfg.Tracker.Environ(),
 		Dir:          dir,
 		Batch:        s.cfg.Tracker.Batch,
-		ReplyTimeout: reply,
+		StartTimeout: s.cfg.Tracker.StartTimeout,
+		ReplyTimeout: s.cfg.Tracker.StepTimeout,
 		RunTimeout:   s.cfg.Tracker.RunTimeout,
 	}
 	if s.drv.ReplyTimeout == 0 {

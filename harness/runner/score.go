@@ -61,12 +61,12 @@ func gateMetricNames() []string {
 }
 
 // score computes the metrics of frames against the truth of run: GOSPA
-// per step (p = 2, α = 2, cut-off c) on the position components, and, from
+// per step (order p, α = 2, cut-off c) on the position components, and, from
 // the per-step GOSPA matching of tracks to objects, metrics.ScoreRun's
 // identity and error bookkeeping and the NEES of matched tracks.
-func score(run mot.Run, frames []mot.Frame, pos, vel []int, c float64, n int) *runScore {
+func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int) *runScore {
 	steps := min(len(frames), len(run.Truth))
-	params := metrics.Params{Order: 2, Cutoff: c, Components: pos}
+	params := metrics.Params{Order: p, Cutoff: c, Components: pos}
 	var ws metrics.Workspace
 	m := &result.RunMetrics{GOSPA: make([]float64, steps)}
 	mapping := make([]map[string]string, steps)
@@ -144,8 +144,8 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, c float64, n int) *r
 // scoreJob scores the tracker's and the reference's frames of j.
 func (s *settings) scoreJob(j *job) {
 	n := j.sc.spec.Model.StateDim
-	j.score = score(j.run, j.res.Frames, j.sc.pos, j.sc.vel, s.cutoff, n)
-	j.refSc = score(j.run, j.ex.Frames, j.sc.pos, j.sc.vel, s.cutoff, n)
+	j.score = score(j.run, j.res.Frames, j.sc.pos, j.sc.vel, s.order, s.cutoff, n)
+	j.refSc = score(j.run, j.ex.Frames, j.sc.pos, j.sc.vel, s.order, s.cutoff, n)
 	if j.score.err != nil {
 		j.out.Checks = append(j.out.Checks, result.Check{Name: "metrics", Status: result.Error,
 			Message: fmt.Sprintf("the tracker's metrics could not be computed: %v", j.score.err)})

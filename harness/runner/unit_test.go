@@ -58,7 +58,7 @@ func TestScoreClosedForms(t *testing.T) {
 		{Step: 1},
 		{Step: 2, Tracks: []mot.Estimate{{Track: "a", Mean: []float64{30, 1, 0, 1}}}},
 	}
-	rs := score(run, frames, []int{0, 2}, []int{1, 3}, 20, 4)
+	rs := score(run, frames, []int{0, 2}, []int{1, 3}, 2, 20, 4)
 	if rs.err != nil {
 		t.Fatal(rs.err)
 	}
