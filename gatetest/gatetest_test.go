@@ -23,10 +23,13 @@ type recorder struct {
 	fatal        bool
 }
 
-func (r *recorder) Helper()                   {}
-func (r *recorder) Error(a ...any)            { r.errors = append(r.errors, fmt.Sprint(a...)) }
-func (r *recorder) Log(a ...any)              { r.logs = append(r.logs, fmt.Sprint(a...)) }
-func (r *recorder) Fatalf(f string, a ...any) { r.fatal = true; r.errors = append(r.errors, fmt.Sprintf(f, a...)) }
+func (r *recorder) Helper()        {}
+func (r *recorder) Error(a ...any) { r.errors = append(r.errors, fmt.Sprint(a...)) }
+func (r *recorder) Log(a ...any)   { r.logs = append(r.logs, fmt.Sprint(a...)) }
+func (r *recorder) Fatalf(f string, a ...any) {
+	r.fatal = true
+	r.errors = append(r.errors, fmt.Sprintf(f, a...))
+}
 
 // nudged is the reference with its first track's first mean component
 // moved by 5 cm from step `at` on: an estimation regression.
