@@ -138,16 +138,6 @@ var knownWeaknesses = map[string]string{
 	// (a gated detection) with a stopped object, or leave association
 	// verdicts after the first tie to the conformance check.
 	"tie-flip@float64-port/near-ties": "after a tie the reference check judges objects clustered with the tied ones by the reference run's margins",
-	// The tracks are paired with objects by compare.Align over the steps
-	// up to the first tie (all of them when there is none). A harmful
-	// swap is not a tie, so a greedy tracker whose tracks swap objects at
-	// step 1 and keep them swapped is paired by the later, longer part of
-	// the run, and its steps before the swap, identical to the
-	// reference's, are reported as the first divergence (convoy runs 0
-	// and 2: step 0 instead of steps 1 and 4). Fix: align only over the
-	// steps before the first changed association of any kind, as is
-	// already done before the first tie.
-	"greedy@float64-port": "tracks are aligned over the whole run after a harmful swap, so the first divergence is reported too early",
 }
 
 // TestCatalogue runs every bench through the gate and prints the tally.

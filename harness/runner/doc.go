@@ -16,14 +16,19 @@
 //
 // # Checks against the reference
 //
-// Track names are first paired over the whole run (compare.Align), so that a
-// tracker may call its tracks anything and list tracks or detections in any
-// order. The pairing is anchored before the first ambiguous step (the
-// first whose reference margin is within the ambiguity threshold): tracks
-// present before it are paired on the steps before it only, the others
-// over the whole run among themselves (see alignRun), because after a tie
-// resolved the other way a track may rightly follow the path the other
-// object took in the reference's run. Then, for each run:
+// Track names are first paired by their positions (compare.Align), so that
+// a tracker may call its tracks anything and list tracks or detections in
+// any order. The pairing is anchored on the steps where both runs took the
+// same decisions: it is made over the steps before the first step s at
+// which the reference's margin is within the ambiguity threshold, or a
+// track, paired by the steps before s, reported a detection other than its
+// partner's (a changed association of any kind); tracks that appear from
+// that step on are paired over the whole run among themselves (see
+// alignRun). After a swap, harmful or not, a track may follow the path the
+// other object took in the reference's run for most of the run, and a
+// whole-run pairing would swap the names back to the first step and report
+// the identical steps before the swap as the divergence. Then, for each
+// run:
 //
 //   - reference: step by step, every paired track's association is compared
 //     with the reference's. Let m be the reference's margin at the step,
