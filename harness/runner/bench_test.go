@@ -39,3 +39,20 @@ func BenchmarkJudge(b *testing.B) {
 		s.judge(&j)
 	}
 }
+
+// BenchmarkCheckStockLocal measures a check of the whole stock library,
+// 10 runs per scenario, against the reference, with the reference run in
+// process as the tracker: the harness's own cost without process and
+// protocol overhead.
+func BenchmarkCheckStockLocal(b *testing.B) {
+	o := variantOptions("reference")
+	o.Scenarios = nil
+	o.Config.Scenarios = []string{stock + "*.yaml"}
+	o.Against, o.Runs, o.Local = AgainstReference, 10, referenceLocal()
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Check(context.Background(), o); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

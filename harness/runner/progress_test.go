@@ -244,3 +244,37 @@ func TestLocalTrackerCancelled(t *testing.T) {
 		t.Errorf("fault %+v, want canceled", f)
 	}
 }
+
+// TestReusedReferenceStepChangesNothing: taking the reference's own step
+// in the conformance check, where the tracker's previous estimates are the
+// reference's bit for bit, gives the same result as restarting the
+// reference there, for the reference itself, for trackers that differ
+// from it (a nudged estimate, a tie resolved the other way) and on the
+// whole stock library.
+func TestReusedReferenceStepChangesNothing(t *testing.T) {
+	if testing.Short() {
+		t.Skip("the stock library twice per tracker")
+	}
+	for _, variant := range []string{"reference", "nudge", "flip", "swap"} {
+		t.Run(variant, func(t *testing.T) {
+			o := variantOptions(variant)
+			o.Scenarios = nil
+			o.Config.Scenarios = []string{stock + "*.yaml"}
+			o.Config.TieMargin = 1e-9
+			o.Against, o.Runs = AgainstReference, 2
+			fast, err := result.Marshal(checkOf(t, o))
+			if err != nil {
+				t.Fatal(err)
+			}
+			reuseReferenceStep = false
+			defer func() { reuseReferenceStep = true }()
+			slow, err := result.Marshal(checkOf(t, o))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(fast, slow) {
+				t.Errorf("the reused step changes the result:\n%s", firstDifference(slow, fast))
+			}
+		})
+	}
+}
