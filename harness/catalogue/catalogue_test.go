@@ -121,24 +121,7 @@ func benches() []bench {
 // should, with the reason. Such a bench is run and tallied like any other,
 // its problems are logged instead of failing the test, and the test fails
 // when it starts to come out right, so that the entry is removed.
-var knownWeaknesses = map[string]string{
-	// The reference check of harness/runner compares a tracker's whole run
-	// with the reference's and stops comparing an object after its first
-	// tie, but keeps comparing the other objects with the reference run's
-	// associations and margins, although their association now depends on
-	// the stopped objects' states through shared gated detections. In
-	// convoy-parallel-trucks run 1, tie-flip takes the second-best
-	// hypothesis at step 4 (margin 0.279 ≤ τ = 0.5, a tie, lorry-2 and
-	// lorry-3 stopped); at step 5, in its own context, the best of the
-	// cluster of all five lorries leads by 0.258, a tie again, while the
-	// reference run's margin there is 0.758, so lorry-1, lorry-4 and
-	// lorry-5 are reported as association regressions. The conformance
-	// check, restarted from the tracker's states, rightly sees a tie. Fix:
-	// in the reference check, stop an object also when it shares a cluster
-	// (a gated detection) with a stopped object, or leave association
-	// verdicts after the first tie to the conformance check.
-	"tie-flip@float64-port/near-ties": "after a tie the reference check judges objects clustered with the tied ones by the reference run's margins",
-}
+var knownWeaknesses = map[string]string{}
 
 // TestCatalogue runs every bench through the gate and prints the tally.
 func TestCatalogue(t *testing.T) {

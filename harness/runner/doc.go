@@ -43,9 +43,21 @@
 //     choice the two runs need not agree. For a tracker that does not report
 //     associations, an object stops being compared at the first step whose
 //     margin is within the threshold and whose two best hypotheses give it
-//     different detections. Tracks for objects that are not
-//     alive, and live objects without a track, are divergences of kind
-//     "track-count".
+//     different detections. A stopped object's state may rightly differ
+//     from the reference's, and then so may the choice of every object
+//     whose association depends on it: at each step, a live object joined
+//     to a stopped one by a chain of objects sharing a detection (one in
+//     its gate in the reference's cost matrix, or the one its track
+//     reported) is entangled. A changed association of an entangled object
+//     is a tie whatever the margin, since the reference run's margin no
+//     longer describes the tracker's situation, and the object is stopped;
+//     its choice is left to the conformance check, which restarts from the
+//     tracker's own state. An entangled object that keeps the reference's
+//     association is still compared (its own state is still the
+//     reference's); for a tracker that does not report associations, an
+//     estimate difference of an entangled object is a tie likewise. Tracks
+//     for objects that are not alive, and live objects without a track, are
+//     divergences of kind "track-count".
 //   - conformance (trackers that report covariances): at each step k the
 //     reference restarts from the tracker's own estimates at step k−1
 //     (tracker.StepFrom; objects appearing at k start from their priors),

@@ -8,6 +8,7 @@ import (
 
 	"trackgate/harness/compare"
 	"trackgate/harness/mot"
+	"trackgate/harness/result"
 	"trackgate/reference/tracker"
 )
 
@@ -224,5 +225,178 @@ func TestAlignRunBadInput(t *testing.T) {
 		if _, err := alignRun(want, got, steps, 0.5, opts); err == nil {
 			t.Errorf("track twice at step %d: no error", at)
 		}
+	}
+}
+
+// refObj is one object at one step of a hand-built reference check: what
+// the reference did and what the tracker did.
+type refObj struct {
+	name  string
+	det   int     // the reference's detection
+	gated []int   // the detections in the reference's gate
+	mean  float64 // the reference's estimate (one component)
+	tdet  int     // the tracker's detection
+	tmean float64 // the tracker's estimate
+}
+
+// refStep is one step: the reference's margin, its two best hypotheses'
+// associations (nil: only the best), and the objects.
+type refStep struct {
+	margin float64
+	second []int // per object, the second best hypothesis's detection
+	objs   []refObj
+}
+
+// refJob builds the job of a hand-built run; the tracker calls the track
+// of object o "trk-o" and reports associations when assoc is set.
+func refJob(steps []refStep, assoc bool) *job {
+	j := &job{sc: &scen{tie: 0.5, profile: compare.BitExact()}, names: map[string]string{}}
+	j.res.Tracker.Association = assoc
+	for k, st := range steps {
+		d := tracker.Detail{Step: k, Margin: st.margin}
+		cols := map[int]int{}
+		best := tracker.Hypothesis{}
+		f := mot.Frame{Step: k}
+		for _, o := range st.objs {
+			d.Objects = append(d.Objects, tracker.ObjectDetail{Object: o.name, Detection: o.det, Mean: []float64{o.mean}})
+			d.Costs.Objects = append(d.Costs.Objects, o.name)
+			var row []tracker.Entry
+			for _, g := range o.gated {
+				c, ok := cols[g]
+				if !ok {
+					c = len(d.Costs.Detections)
+					cols[g] = c
+					d.Costs.Detections = append(d.Costs.Detections, g)
+				}
+				row = append(row, tracker.Entry{Col: c, Cost: 1})
+			}
+			d.Costs.Gated = append(d.Costs.Gated, row)
+			d.Costs.Miss = append(d.Costs.Miss, 2)
+			best.Assoc = append(best.Assoc, o.det)
+			e := mot.Estimate{Track: "trk-" + o.name, Mean: []float64{o.tmean}, Detection: mot.NoDetection}
+			if assoc {
+				e.Detection, e.HasDetection = o.tdet, true
+			}
+			f.Tracks = append(f.Tracks, e)
+			j.names["trk-"+o.name] = o.name
+		}
+		best.Prob = 0.6
+		d.Hypotheses = []tracker.Hypothesis{best}
+		if st.second != nil {
+			d.Hypotheses = append(d.Hypotheses, tracker.Hypothesis{Prob: 0.3, Assoc: st.second})
+		}
+		j.ex.Steps = append(j.ex.Steps, d)
+		j.res.Frames = append(j.res.Frames, f)
+	}
+	return j
+}
+
+// same is an object the tracker handles as the reference does.
+func same(name string, det int, gated ...int) refObj {
+	return refObj{name: name, det: det, gated: gated, mean: float64(det), tdet: det, tmean: float64(det)}
+}
+
+// took is an object to which the tracker gave detection tdet instead,
+// with the estimate that goes with it.
+func took(name string, det, tdet int, gated ...int) refObj {
+	return refObj{name: name, det: det, gated: gated, mean: float64(det), tdet: tdet, tmean: float64(tdet)}
+}
+
+// TestReferenceCheckEntangled: after a tie resolved the other way, a
+// changed association of an object that shares a cluster (through a chain
+// of gated or reported detections) with a stopped object is a tie, not a
+// regression, whatever the reference run's margin; an object of another
+// cluster is still judged by the margin, and an entangled object that keeps
+// the reference's association is still compared.
+func TestReferenceCheckEntangled(t *testing.T) {
+	// Step 0: p and q swap detections 1 and 2 at a tie (margin 0.2 ≤ 0.5);
+	// r (detection 3) and s (detection 9) are left alone.
+	tieStep := refStep{margin: 0.2, second: []int{2, 1, 3, 9}, objs: []refObj{
+		took("p", 1, 2, 1, 2), took("q", 2, 1, 1, 2), same("r", 3, 3), same("s", 9, 9),
+	}}
+	type want struct {
+		status  result.Status
+		first   int      // step of the first regression, −1 for none
+		kind    string   // its kind
+		objects []string // its objects
+		ties    map[string]int
+	}
+	cases := []struct {
+		name  string
+		assoc bool
+		step1 refStep
+		want  want
+	}{
+		{
+			name:  "r shares detection 12 with q, s is in a cluster of its own",
+			assoc: true,
+			step1: refStep{margin: 3, objs: []refObj{
+				same("p", 11, 11, 12), same("q", 12, 12), took("r", 13, 12, 12, 13), took("s", 20, 21, 20, 21),
+			}},
+			want: want{result.Fail, 1, "association", []string{"s"}, map[string]int{"p": 0, "q": 0, "r": 1}},
+		},
+		{
+			name:  "only the entangled object changes",
+			assoc: true,
+			step1: refStep{margin: 3, objs: []refObj{
+				same("p", 11, 11, 12), same("q", 12, 12), took("r", 13, 12, 12, 13), same("s", 20, 20, 21),
+			}},
+			want: want{result.Tie, -1, "", nil, map[string]int{"p": 0, "q": 0, "r": 1}},
+		},
+		{
+			name:  "joined through a middle object that keeps its association",
+			assoc: true,
+			step1: refStep{margin: 3, objs: []refObj{
+				same("p", 11, 11), same("q", 12, 12, 13), same("r", 13, 13, 14), took("s", 15, 14, 14, 15),
+			}},
+			want: want{result.Tie, -1, "", nil, map[string]int{"p": 0, "q": 0, "s": 1}},
+		},
+		{
+			name:  "joined only through the detection the tracker gave a stopped object",
+			assoc: true,
+			step1: refStep{margin: 3, objs: []refObj{
+				same("p", 11, 11), took("q", 12, 14, 12), same("r", 13, 13), took("s", 15, 16, 14, 15, 16),
+			}},
+			want: want{result.Tie, -1, "", nil, map[string]int{"p": 0, "q": 0, "s": 1}},
+		},
+		{
+			name:  "an entangled object that keeps its association is still compared",
+			assoc: true,
+			step1: refStep{margin: 3, objs: []refObj{
+				same("p", 11, 11, 12), same("q", 12, 12), {name: "r", det: 13, gated: []int{12, 13}, mean: 13, tdet: 13, tmean: 13.5}, same("s", 20, 20),
+			}},
+			want: want{result.Fail, 1, "estimate", []string{"r"}, map[string]int{"p": 0, "q": 0}},
+		},
+		{
+			name:  "without associations: an entangled estimate difference is a tie, a lone one a regression",
+			assoc: false,
+			step1: refStep{margin: 3, objs: []refObj{
+				same("p", 11, 11, 12), same("q", 12, 12), took("r", 13, 12, 12, 13), took("s", 20, 21, 20, 21),
+			}},
+			want: want{result.Fail, 1, "estimate", []string{"s"}, map[string]int{"p": 0, "q": 0, "r": 1}},
+		},
+	}
+	s := &settings{maxDiffs: 10}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			j := refJob([]refStep{tieStep, tc.step1}, tc.assoc)
+			c := s.checkReference(j)
+			if c.Status != tc.want.status {
+				t.Errorf("status %s, want %s (%s)", c.Status, tc.want.status, c.Message)
+			}
+			switch {
+			case tc.want.first < 0 && c.First != nil:
+				t.Errorf("first regression at step %d (%s %v: %s), want none", c.First.Step, c.First.Kind, c.First.Objects, c.First.Message)
+			case tc.want.first >= 0 && c.First == nil:
+				t.Errorf("no regression, want one at step %d", tc.want.first)
+			case tc.want.first >= 0:
+				if c.First.Step != tc.want.first || c.First.Kind != tc.want.kind || !slices.Equal(c.First.Objects, tc.want.objects) {
+					t.Errorf("first regression at step %d, %s, objects %v; want step %d, %s, %v", c.First.Step, c.First.Kind, c.First.Objects, tc.want.first, tc.want.kind, tc.want.objects)
+				}
+			}
+			if !maps.Equal(j.ties, tc.want.ties) {
+				t.Errorf("first tie per object %v, want %v", j.ties, tc.want.ties)
+			}
+		})
 	}
 }
