@@ -9,6 +9,8 @@ import (
 	"trackgate/harness/compare"
 	"trackgate/harness/mot"
 	"trackgate/harness/result"
+	"trackgate/harness/scenario"
+	"trackgate/harness/sim"
 	"trackgate/reference/tracker"
 )
 
@@ -396,6 +398,56 @@ func TestReferenceCheckEntangled(t *testing.T) {
 			}
 			if !maps.Equal(j.ties, tc.want.ties) {
 				t.Errorf("first tie per object %v, want %v", j.ties, tc.want.ties)
+			}
+		})
+	}
+}
+
+// BenchmarkAlignRun measures the anchored pairing of a tracker that agrees
+// with the reference (so that the anchor search runs to the end of the
+// run, computing the pairing again at every step where tracks appear),
+// beside one whole-run compare.Align, on two stock scenarios.
+func BenchmarkAlignRun(b *testing.B) {
+	for _, name := range []string{"scale-container-yard", "lifecycle-warehouse-forklifts"} {
+		spec, err := scenario.Load(scenarioFile(name))
+		if err != nil {
+			b.Fatal(err)
+		}
+		objs := make([]mot.Object, len(spec.Objects))
+		for i, o := range spec.Objects {
+			objs[i] = o.Object
+		}
+		ex, err := tracker.RunAll(tracker.Config{Model: spec.Model, Objects: objs}, sim.Run(spec, 0))
+		if err != nil {
+			b.Fatal(err)
+		}
+		got := make([]mot.Frame, len(ex.Frames))
+		for k, f := range ex.Frames {
+			got[k] = mot.Frame{Step: f.Step, Tracks: slices.Clone(f.Tracks)}
+			for i := range got[k].Tracks {
+				got[k].Tracks[i].Track = "trk-" + got[k].Tracks[i].Track
+			}
+		}
+		pos := make([]int, spec.Model.MeasDim)
+		for i := range pos {
+			pos[i] = i
+		}
+		opts := compare.Options{Position: pos, Cutoff: 10}
+		b.Run(name+"/anchored", func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				names, err := alignRun(ex.Frames, got, ex.Steps, 1e-9, opts)
+				if err != nil || len(names) == 0 {
+					b.Fatal(err, len(names))
+				}
+			}
+		})
+		b.Run(name+"/whole-run", func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := compare.Align(ex.Frames, got, opts); err != nil {
+					b.Fatal(err)
+				}
 			}
 		})
 	}
