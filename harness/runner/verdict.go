@@ -247,6 +247,16 @@ func estimateDivergence(k int, o string, r compare.Result, what string) result.D
 // The gate of a stopped object in the tracker's own run is not known (its
 // state is no longer the reference's), so the detection the tracker gave
 // it stands in for the part of that gate the reference's misses.
+//
+// These are the clusters of package tracker (connected components of the
+// gating graph), widened by the reported detections: an object outside
+// every such cluster faces the same association problem as in the
+// reference's run, so the reference's decision binds it.
+//
+// References:
+//   - Y. Bar-Shalom, P. K. Willett, X. Tian, "Tracking and Data Fusion: A
+//     Handbook of Algorithms", YBS Publishing, 2011 (validation gate and
+//     clustering of tracks that share measurements; from memory).
 func entangled(d *tracker.Detail, f mot.Frame, v view, stopped map[string]int) map[string][]string {
 	if len(stopped) == 0 {
 		return nil
