@@ -80,11 +80,27 @@ func CheckTimed(ctx context.Context, o Options) (*result.Suite, Timing, error) {
 	}
 	scens := s.load()
 	jobs := s.plan(scens, func(sc *scen, r int) bool { return s.Shard.Holds(sc.spec.Name, r) })
-	s.parallel(len(jobs), func(i int) { s.prepareJob(jobs[i]) })
-	t0 := time.Now()
-	s.drive(ctx, jobs)
-	tm.Tracker = time.Since(t0)
-	s.parallel(len(jobs), func(i int) { s.judge(jobs[i]) })
+	if s.Progress != nil {
+		s.tally = newTally(s.Progress, len(jobs))
+	}
+	// Runs go through the pipeline a batch at a time, and a judged run
+	// keeps only its result, so memory stays bounded by the batch
+	// whatever the number of runs.
+	batch := max(64, 16*s.workers)
+	if batchRuns > 0 {
+		batch = batchRuns
+	}
+	for lo := 0; lo < len(jobs); lo += batch {
+		part := jobs[lo:min(len(jobs), lo+batch)]
+		s.parallel(len(part), func(i int) { s.prepareJob(part[i]) })
+		t0 := time.Now()
+		s.drive(ctx, part)
+		tm.Tracker += time.Since(t0)
+		s.parallel(len(part), func(i int) {
+			s.judge(part[i])
+			part[i].release()
+		})
+	}
 	suite := s.assemble(scens)
 	tm.Total = time.Since(start)
 	tm.Harness = tm.Total - tm.Tracker
@@ -143,6 +159,18 @@ func (s *settings) prepareJob(j *job) {
 	j.ex, j.refErr = tracker.RunAll(tracker.Config{Model: spec.Model, Objects: objectsOf(spec), K: s.K}, j.run)
 }
 
+// batchRuns, when positive, replaces the number of runs per batch of
+// CheckTimed; tests set it.
+var batchRuns = 0
+
+// release drops what a judged run no longer needs: everything but its
+// result and the tracker's ready reply.
+func (j *job) release() {
+	j.run, j.ex = mot.Run{}, tracker.Expected{}
+	j.res = driver.Result{Tracker: j.res.Tracker}
+	j.names, j.score, j.refSc, j.blessed, j.ties = nil, nil, nil, nil, nil
+}
+
 // drive runs the tracker over every job whose reference succeeded.
 func (s *settings) drive(ctx context.Context, jobs []*job) {
 	var djobs []driver.Job
@@ -153,6 +181,7 @@ func (s *settings) drive(ctx context.Context, jobs []*job) {
 			idx = append(idx, i)
 		}
 	}
+	s.tally.add(len(jobs) - len(djobs)) // runs the reference failed on are done
 	t0 := time.Now()
 	res := s.runTracker(ctx, djobs)
 	per := 0.0
@@ -161,6 +190,7 @@ func (s *settings) drive(ctx context.Context, jobs []*job) {
 	}
 	for k, i := range idx {
 		jobs[i].res = res[k]
+		jobs[i].res.Tape = nil // not used by any check
 		jobs[i].secs = per
 	}
 }
@@ -170,27 +200,29 @@ func (s *settings) drive(ctx context.Context, jobs []*job) {
 // time per worker.
 func (s *settings) runTracker(ctx context.Context, djobs []driver.Job) []driver.Result {
 	total := len(djobs)
+	if s.Progress != nil && s.tally == nil {
+		s.tally = newTally(s.Progress, total)
+	}
+	p := s.tally
 	if s.Local != nil {
-		if s.Progress == nil {
+		if p == nil {
 			return s.driveLocal(ctx, djobs)
 		}
 		out := make([]driver.Result, total)
-		p := newTally(s.Progress, total)
 		s.parallel(total, func(i int) {
 			out[i] = s.runLocal(ctx, djobs[i])
 			p.add(1)
 		})
 		return out
 	}
-	if s.Progress == nil || total == 0 {
+	if p == nil || total == 0 {
 		return driver.RunMany(ctx, s.drv, djobs, s.workers)
 	}
-	// Chunks of about a fiftieth of the suite per update, at most 16
-	// runs, each chunk served by one tracker start.
-	size := max(1, min(16, total/(50*max(1, s.workers))))
+	// Chunks of about a fiftieth of the suite's runs per worker, at most
+	// 16 runs, each chunk served by one tracker start.
+	size := max(1, min(16, p.total/(50*max(1, s.workers))))
 	chunks := (total + size - 1) / size
 	out := make([]driver.Result, total)
-	p := newTally(s.Progress, total)
 	s.parallel(chunks, func(c int) {
 		lo, hi := c*size, min(total, (c+1)*size)
 		copy(out[lo:hi], driver.RunMany(ctx, s.drv, djobs[lo:hi], 1))
@@ -213,7 +245,11 @@ func newTally(f func(int, int), total int) *tally {
 	return t
 }
 
+// add counts n more runs done; a nil t does nothing.
 func (t *tally) add(n int) {
+	if t == nil || n == 0 {
+		return
+	}
 	t.mu.Lock()
 	defer t.mu.Unlock()
 	t.done += n

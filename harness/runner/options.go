@@ -131,6 +131,7 @@ type settings struct {
 	fromConfig bool // the scenario list came from the project's globs
 	drv        driver.Config
 	getenv     func(string) string
+	tally      *tally // counts finished runs for Options.Progress
 }
 
 // resolve checks o and fills in the defaults. needTracker is false for

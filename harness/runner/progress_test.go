@@ -101,6 +101,18 @@ func TestProgressAndTimingLeaveResultsAlone(t *testing.T) {
 	if bytes.Contains(plain, []byte(`"seconds"`)) {
 		t.Error("a result without Timing records seconds")
 	}
+	// Batches of 5 runs (the last one short) instead of one batch.
+	batchRuns = 5
+	defer func() { batchRuns = 0 }()
+	o = base()
+	o.Progress = func(int, int) {}
+	batched, err := result.Marshal(checkOf(t, o))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(plain, batched) {
+		t.Errorf("small batches changed the result:\n%s", firstDifference(plain, batched))
+	}
 }
 
 // referenceLocal is the reference tracker run in process.
