@@ -183,3 +183,16 @@ func TestFirstFailure(t *testing.T) {
 		t.Errorf("firstFailure = %q, want %q", got, want)
 	}
 }
+
+// BenchmarkRun measures Run on one stock scenario, 10 runs, the reference
+// in process against the reference: what a team's go test pays per
+// scenario besides its own tracker.
+func BenchmarkRun(b *testing.B) {
+	o := Options{Scenarios: []string{stock + "crossing-harbour-vessels.yaml"}, Runs: 10, Getenv: noCI}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, _, err := Run(b.Context(), Reference(), o); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
