@@ -71,6 +71,9 @@ func runMerge(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail("--config: %v", err)
 	}
+	if cfg.File == "" {
+		fmt.Fprintf(stderr, "trackgate merge: note: no project file %s; the merged scenarios are judged without gates\n", *configFile)
+	}
 	merged, err := result.Merge(suites...)
 	if err != nil {
 		return fail("%v (files in order: %v)", err, files)
