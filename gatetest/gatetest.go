@@ -124,7 +124,10 @@ func options(tr Tracker, o Options) (runner.Options, error) {
 		if err != nil {
 			return ro, fmt.Errorf("scenarios: bad pattern %q: %v", p, err)
 		}
-		if m == nil && !strings.ContainsAny(p, "*?[") {
+		if m == nil {
+			if strings.ContainsAny(p, "*?[") {
+				return ro, fmt.Errorf("scenarios: %q matches no file", p)
+			}
 			m = []string{p} // a plain file that does not exist: the runner names it
 		}
 		sort.Strings(m)
@@ -157,7 +160,13 @@ func Failures(s *result.Suite) []string {
 	var out []string
 	for _, sc := range s.Scenarios {
 		if sc.Status == result.Error && len(sc.Runs) == 0 {
-			out = append(out, fmt.Sprintf("%s: not run (%s)", sc.Name, sc.File))
+			why := sc.File
+			for _, n := range s.Notes {
+				if rest, ok := strings.CutPrefix(n, "scenario "+sc.File+" not run: "); ok {
+					why = rest
+				}
+			}
+			out = append(out, fmt.Sprintf("%s: not run: %s", sc.Name, why))
 		}
 		for _, r := range sc.Runs {
 			if r.Status.Rank() <= result.Tie.Rank() {

@@ -2,6 +2,7 @@ package gatetest
 
 import (
 	"fmt"
+	"os"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -140,7 +141,7 @@ func TestBadOptions(t *testing.T) {
 		o    Options
 		want string
 	}{
-		{"no scenario", Options{Scenarios: []string{stock + "none-*.yaml"}}, "match no file"},
+		{"no scenario", Options{Scenarios: []string{stock + "none-*.yaml"}}, "matches no file"},
 		{"update without folder", Options{Scenarios: []string{stock + "tie-mirror-pair.yaml"}, Update: true}, "no golden folder"},
 		{"CI refuses update", Options{Scenarios: []string{stock + "tie-mirror-pair.yaml"}, Update: true, Golden: "unused",
 			Getenv: func(k string) string {
@@ -194,5 +195,22 @@ func BenchmarkRun(b *testing.B) {
 		if _, _, err := Run(b.Context(), Reference(), o); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// TestUnloadableScenario: a scenario file that does not load is one
+// failure naming the file and what is wrong with it.
+func TestUnloadableScenario(t *testing.T) {
+	bad := filepath.Join(t.TempDir(), "sluice-gate.yaml")
+	if err := os.WriteFile(bad, []byte("format: 1\nname: sluice-gate\nsteps: many\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var rec recorder
+	s := Check(&rec, Reference(), Options{Scenarios: []string{bad, stock + "tie-mirror-pair.yaml"}, Getenv: noCI})
+	if s.Status != result.Error || len(rec.errors) != 1 {
+		t.Fatalf("status %s, errors %q; want one error", s.Status, rec.errors)
+	}
+	if e := rec.errors[0]; !strings.HasPrefix(e, "sluice-gate: not run: ") || !strings.Contains(e, "steps") {
+		t.Errorf("failure %q does not say why the scenario was not run", e)
 	}
 }
