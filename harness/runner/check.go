@@ -347,7 +347,8 @@ func (s *settings) judge(j *job) {
 
 // goldenRunsOf is G for one scenario: Options.GoldenRuns, else the
 // project's for the scenario, else DefaultGoldenRuns; never more than the
-// scenario's runs.
+// runs planned, nor than the scenario file's own run count, so that the
+// golden set does not depend on a --runs override.
 func (s *settings) goldenRunsOf(sc *scen) int {
 	g := s.gRuns
 	if g == 0 {
@@ -356,7 +357,7 @@ func (s *settings) goldenRunsOf(sc *scen) int {
 	if g <= 0 {
 		g = DefaultGoldenRuns
 	}
-	return min(sc.planned, g)
+	return min(sc.planned, sc.spec.Runs, g)
 }
 
 // assemble builds the suite from the judged jobs.

@@ -450,3 +450,33 @@ func TestBadScenarioIsAnError(t *testing.T) {
 		t.Errorf("notes %q do not name the broken file", s.Notes)
 	}
 }
+
+// TestRunsOverrideKeepsTheGoldenSet: raising the run count above a
+// scenario's own (tie-mirror-pair has one run) checks the extra runs against
+// the reference only; the golden set is that of the scenario file, so CI
+// mode does not report the extra runs' goldens as missing.
+func TestRunsOverrideKeepsTheGoldenSet(t *testing.T) {
+	cfg, err := config.Load("../../trackgate.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := variantOptions("reference")
+	o.Scenarios = []string{scenarioFile("tie-mirror-pair")}
+	o.Config, o.CI, o.Runs = cfg, true, 2
+	o.Config.Tracker.Env = map[string]string{variantEnv: "reference", "GORACE": "atexit_sleep_ms=0"}
+	s := checkOf(t, o)
+	if s.Status != result.Pass {
+		t.Fatalf("status %s, want pass; notes %q", s.Status, s.Notes)
+	}
+	if n := len(s.Scenarios[0].Runs); n != 2 {
+		t.Fatalf("%d runs checked, want 2", n)
+	}
+	for _, c := range s.Scenarios[0].Runs[1].Checks {
+		if c.Name == "golden" {
+			t.Errorf("run 1 has a golden check (%s: %s), but the scenario's golden set is run 0 only", c.Status, c.Message)
+		}
+	}
+	if findCheck(t, s, 0, 0, "golden").Status != result.Pass {
+		t.Error("run 0 lost its golden check")
+	}
+}
