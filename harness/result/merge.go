@@ -39,8 +39,9 @@ import (
 // so NEESLow, NEESHigh, NEESConfidence and NEESInBand are kept only when
 // every part gives the same band, and dropped otherwise. Gates decided on
 // part of the runs cannot be combined: they are dropped, and a note in
-// Suite.Notes says so, so that a gate is re-evaluated on the merged
-// metrics rather than trusted.
+// Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
+// and gates again from the runs' own values (runner.Judge), which gives the
+// unsharded result.
 //
 // Merge does not modify its arguments; the merged suite shares runs'
 // slices (checks, traces) with them. Errors name the shard (by its

@@ -27,12 +27,13 @@
 //
 // # Whole scenarios
 //
-// A scenario's statistical gates and summary metrics need all of its runs,
-// so a shard that holds only some of them cannot judge them, and merging
-// shard results cannot either (the gates' per-run inputs are not in the
-// result). "K/N:scenarios" (Spec.Scenarios) deals whole scenarios instead:
-// every run goes to the shard of the scenario's run 0, h(n) mod N. Each
-// shard then judges its scenarios' gates and the merge keeps them; the price
+// A scenario's statistical gates and summary metrics need all of its runs.
+// Each run of a result carries its own metric values and baselines
+// (result.Run.Values), so 'trackgate merge' judges the gates again on the
+// merged runs (runner.Judge) and plain run-level shards merge to the
+// unsharded result. "K/N:scenarios" (Spec.Scenarios) deals whole scenarios
+// instead: every run goes to the shard of the scenario's run 0, h(n) mod N,
+// so that each shard can also judge its scenarios' gates on its own; the price
 // is balance, since a shard's load is the sum of whole scenarios. Adding a
 // scenario still moves no other.
 //
