@@ -1,8 +1,10 @@
 package assign
 
 import (
+	"cmp"
 	"container/heap"
 	"math"
+	"slices"
 )
 
 // Hypothesis is one full assignment and its cost.
@@ -17,6 +19,13 @@ type Hypothesis struct {
 // every row is assigned when rows ≤ cols, every column when rows > cols.
 // Equal costs come out in a deterministic but unspecified order. It returns
 // ErrInfeasible when not even one assignment exists, and nil for k ≤ 0.
+//
+// Each Cost is the sum of the hypothesis's entries added in row order
+// (rows left unassigned add nothing), and the list is non-decreasing in
+// exactly those sums: the search ranks by totals whose rounding depends on
+// the internal orientation and the path it took, so near-ties that differ
+// in the last bits are put back in order by a stable sort before return.
+// Equal assignments thus always cost the same bits, whatever the search.
 //
 // Subproblems wait in the heap under a lower bound and, once on top, are
 // solved from their parent's duals and partial assignment with a single
@@ -41,7 +50,26 @@ func KBest(cost []float64, rows, cols, k int) ([]Hypothesis, error) {
 		return []Hypothesis{h}, nil
 	}
 	r := newRanker(cost, rows, cols)
-	return r.run(k)
+	out, err := r.run(k)
+	if err != nil {
+		return nil, err
+	}
+	for q := range out {
+		out[q].Cost = rowSum(cost, cols, out[q].RowToCol)
+	}
+	slices.SortStableFunc(out, func(a, b Hypothesis) int { return cmp.Compare(a.Cost, b.Cost) })
+	return out, nil
+}
+
+// rowSum is the sum of the entries of an assignment added in row order.
+func rowSum(cost []float64, cols int, rowToCol []int) float64 {
+	s := 0.0
+	for i, j := range rowToCol {
+		if j >= 0 {
+			s += cost[i*cols+j]
+		}
+	}
+	return s
 }
 
 // ranker holds the square padded problem and the heap of solved subproblems.

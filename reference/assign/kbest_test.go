@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"sort"
 	"testing"
 )
@@ -350,6 +351,55 @@ func TestKBestDeterministic(t *testing.T) {
 	for i := range a {
 		if a[i].Cost != b[i].Cost || fmt.Sprint(a[i].RowToCol) != fmt.Sprint(b[i].RowToCol) {
 			t.Fatalf("rank %d differs: %v and %v", i, a[i], b[i])
+		}
+	}
+}
+
+// TestKBestExactOrder ranks tie-heavy matrices whose entries are decimal
+// fractions (0.1, 0.2, 0.3, 0.7 and their sums are not exact in binary, so
+// equal assignments summed in different orders differ in the last bits) and
+// checks that each hypothesis's Cost is, bit for bit, the sum of its entries
+// added in row order and that those sums never decrease down the list. The
+// criterion is the definition of a ranked list (Murty 1968: the k-th
+// assignment costs no less than the (k−1)-th), applied to the float sum a
+// caller recomputes; the enumeration oracle checks the list is the k best.
+func TestKBestExactOrder(t *testing.T) {
+	rng := rand.New(rand.NewPCG(2026, 12))
+	vals := []float64{0.1, 0.2, 0.3, 0.7, 1e-13, 0.1 + 0.2}
+	shapes := [][2]int{{3, 3}, {4, 4}, {5, 5}, {3, 6}, {4, 7}, {5, 7}, {6, 3}, {6, 4}, {2, 5}}
+	for trial := 0; trial < 450; trial++ {
+		sh := shapes[trial%len(shapes)]
+		rows, cols := sh[0], sh[1]
+		c := make([]float64, rows*cols)
+		for q := range c {
+			if trial%3 == 0 && rng.Float64() < 0.2 {
+				c[q] = math.Inf(1)
+				continue
+			}
+			c[q] = vals[rng.IntN(len(vals))] * float64(1+rng.IntN(3))
+		}
+		k := 5 + rng.IntN(40)
+		got, err := KBest(c, rows, cols, k)
+		if errors.Is(err, ErrInfeasible) {
+			continue
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, h := range got {
+			s := recompute(c, cols, h.RowToCol)
+			if math.Float64bits(s) != math.Float64bits(h.Cost) {
+				t.Fatalf("trial %d (%d×%d): hypothesis %d %v has Cost %v, its row-order sum is %v", trial, rows, cols, i, h.RowToCol, h.Cost, s)
+			}
+			if i > 0 && s < got[i-1].Cost {
+				t.Fatalf("trial %d (%d×%d): hypothesis %d costs %v < %v of hypothesis %d (by %g)", trial, rows, cols, i, s, got[i-1].Cost, i-1, got[i-1].Cost-s)
+			}
+		}
+		all := enumerate(c, rows, cols)
+		for i, h := range got {
+			if !near(h.Cost, all[i].Cost) {
+				t.Fatalf("trial %d: rank %d costs %v, the oracle's %v", trial, i, h.Cost, all[i].Cost)
+			}
 		}
 	}
 }
