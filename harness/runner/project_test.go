@@ -36,7 +36,7 @@ func TestProjectSettingsReachTheRun(t *testing.T) {
 	}
 	scens := s.load()
 	for _, sc := range scens {
-		sc.planned = 10
+		sc.planned, sc.spec.Runs = 10, 10
 	}
 	if g0, g1 := s.goldenRunsOf(scens[0]), s.goldenRunsOf(scens[1]); g0 != 2 || g1 != 5 {
 		t.Errorf("golden runs %d and %d, want the project's 2 and the override's 5", g0, g1)
