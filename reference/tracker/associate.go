@@ -125,6 +125,14 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 		d.Cost += c.hyps[0].Cost
 	}
 	e.hypotheses(&d, feasible, rowToDet, detIDs, r)
+	d.PerCluster = e.perCluster(clusters, detIDs)
+
+	clusterOf := make([]int, r)
+	for ci, c := range clusters {
+		for _, row := range c.rows {
+			clusterOf[row] = ci
+		}
+	}
 
 	// Updates with the best hypothesis.
 	d.Objects = make([]ObjectDetail, r)
@@ -146,6 +154,7 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 			Mean: um,
 			Cov:  mot.Mat{Rows: n, Cols: n, Data: uc},
 		}
+		od.Cluster = clusterOf[i]
 		if j := rowToDet[i]; j >= 0 {
 			res := e.f.UpdateTo(od.Mean, od.Cov.Data, xs[i], ps[i], &projs[i], dets[j].Z)
 			od.Detection = dets[j].ID
@@ -154,6 +163,49 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 		d.Objects[i] = od
 	}
 	return d, nil
+}
+
+// perCluster describes each cluster on its own: its rows, gated
+// detections, margin and k best hypotheses with the cluster's posterior.
+// A cluster without hypotheses coasts.
+func (e *engine) perCluster(clusters []cluster, detIDs []int) []ClusterDetail {
+	out := make([]ClusterDetail, len(clusters))
+	for ci := range clusters {
+		c := &clusters[ci]
+		cd := ClusterDetail{Rows: c.rows, Margin: math.Inf(1), Coasting: len(c.hyps) == 0, Exhaustive: c.exact}
+		cd.Detections = make([]int, len(c.cols))
+		for a, j := range c.cols {
+			cd.Detections[a] = detIDs[j]
+		}
+		if cd.Coasting {
+			out[ci] = cd
+			continue
+		}
+		best := c.hyps[0].Cost
+		cd.Cost = best
+		if len(c.hyps) > 1 {
+			cd.Margin = c.hyps[1].Cost - best
+		}
+		list := c.hyps[:min(e.k, len(c.hyps))]
+		norm := c.logZ
+		if !c.exact {
+			norm = logSumExp(list, best)
+		}
+		cd.Hypotheses = make([]Hypothesis, len(list))
+		assoc := make([]int, len(list)*len(c.rows))
+		for q, h := range list {
+			a := assoc[q*len(c.rows) : (q+1)*len(c.rows) : (q+1)*len(c.rows)]
+			for i, col := range h.RowToCol {
+				a[i] = mot.NoDetection
+				if col < len(c.cols) {
+					a[i] = detIDs[c.cols[col]]
+				}
+			}
+			cd.Hypotheses[q] = Hypothesis{Cost: h.Cost, Prob: math.Exp(-(h.Cost - best) - norm), Assoc: a}
+		}
+		out[ci] = cd
+	}
+	return out
 }
 
 // split returns the connected components of the gating graph of cm, in
@@ -243,21 +295,13 @@ func (e *engine) rank(cm *CostMatrix, c *cluster, local []int) error {
 		// One object: its hypotheses are its finite entries in order.
 		hyps = rankSingle(cost, cols, kr)
 	} else {
+		// KBest costs each hypothesis as the sum of its entries added in
+		// row order, and orders the list by exactly those sums, so that
+		// equal events cost the same bits.
 		var err error
 		if hyps, err = assign.KBest(cost, nr, cols, kr); err != nil {
 			return err
 		}
-		// A hypothesis costs the sum of its entries, added in row order, so
-		// that equal events cost the same bits; near-ties that the solver
-		// ranked by a differently rounded total are put back in order.
-		for q := range hyps {
-			var sum float64
-			for a, col := range hyps[q].RowToCol {
-				sum += cost[a*cols+col]
-			}
-			hyps[q].Cost = sum
-		}
-		slices.SortStableFunc(hyps, func(a, b assign.Hypothesis) int { return cmp.Compare(a.Cost, b.Cost) })
 	}
 	if len(hyps) == 0 {
 		return assign.ErrInfeasible

@@ -55,6 +55,20 @@
 // of this gating graph are clusters, solved independently (each optimally,
 // with reference/assign). Because the augmented cost separates over
 // clusters, the sum of the cluster optima is the optimum of the whole scan.
+// For the same reason the posterior factorises: exp(−cost) of a scan
+// hypothesis is the product of its clusters' factors, and so is the sum
+// over all events, so p(h) = ∏_c p_c(h_c) with p_c the posterior of
+// cluster c alone, and what happens in one cluster says nothing about
+// another.
+//
+// Detail.PerCluster records each cluster on its own (ObjectDetail.Cluster
+// indexes it): its rows and gated detections, its margin (cost of its
+// second-best hypothesis − its best; +∞ with a single hypothesis), and its
+// k best hypotheses with the probabilities p_c, exact when the cluster was
+// enumerated (or its list ran out) and otherwise normalised over its
+// listed hypotheses. A changed association can then be judged by the
+// margin of the cluster in which it happens rather than by the scan's.
+// These per-cluster records are not written to the JSON lines.
 //
 // # Hypotheses
 //

@@ -91,6 +91,34 @@ type ObjectDetail struct {
 	// Coasting reports that the object's cluster had no feasible
 	// association (possible only with P_D = 1).
 	Coasting bool
+	// Cluster is the index in Detail.PerCluster of the object's cluster.
+	Cluster int
+}
+
+// ClusterDetail is one cluster of a scan (a connected component of the
+// gating graph) judged on its own. The posterior of the scan factorises
+// over its clusters (see the package documentation), so a cluster's
+// hypotheses, margin and probabilities do not depend on the other clusters.
+type ClusterDetail struct {
+	// Rows are the rows of Detail.Objects in the cluster, increasing.
+	Rows []int
+	// Detections are the ids of the detections gated by its objects, in
+	// scan order.
+	Detections []int
+	// Cost is the cost of its best hypothesis (0 when it coasts).
+	Cost float64
+	// Margin is cost(2nd best) − cost(best) of the cluster alone, +Inf
+	// when it has a single hypothesis or none.
+	Margin float64
+	// Hypotheses are its k best, best first; Assoc gives the detection id
+	// or mot.NoDetection per entry of Rows. Prob is the cluster's own
+	// posterior: exact when Exhaustive, else normalised over the list.
+	Hypotheses []Hypothesis
+	// Exhaustive reports that every association event of the cluster was
+	// enumerated, so its probabilities are exact.
+	Exhaustive bool
+	// Coasting reports that the cluster had no feasible association.
+	Coasting bool
 }
 
 // Hypothesis is one association event of a scan.
@@ -115,7 +143,8 @@ type Detail struct {
 	Cost float64
 	// Hypotheses are the k best, best first.
 	Hypotheses []Hypothesis
-	// Margin is cost(2nd best) − cost(best), +Inf with one hypothesis.
+	// Margin is cost(2nd best) − cost(best), +Inf with one hypothesis:
+	// the smallest PerCluster margin.
 	Margin float64
 	// BestProb is the probability of the best hypothesis.
 	BestProb float64
@@ -127,6 +156,9 @@ type Detail struct {
 	Exhaustive bool
 	// Clusters is the number of independent clusters solved.
 	Clusters int
+	// PerCluster describes each cluster, in order of its first row
+	// (len(PerCluster) == Clusters). ObjectDetail.Cluster indexes it.
+	PerCluster []ClusterDetail
 	// Coasting lists the objects of clusters with no feasible association.
 	Coasting []string
 }
