@@ -152,10 +152,126 @@ func trackerAssoc(d *tracker.Detail, f mot.Frame, v view, reports bool) []int {
 	return out
 }
 
-// assocDivergence describes a changed association at step k.
-func assocDivergence(k int, d *tracker.Detail, f mot.Frame, v view, changed []string, reports bool, what string) result.Divergence {
+// part is the share of a changed association that falls in one cluster of
+// the reference's step: the cluster's index in Detail.PerCluster (−1 when
+// the step carries no per-cluster structure and the whole scan stands for
+// one cluster), its margin and the changed objects in it.
+type part struct {
+	cluster int
+	margin  float64
+	objects []string
+}
+
+// clusterParts splits the objects objs of step d by the reference's
+// cluster they belong to, in order of first appearance in objs. When d
+// has no per-cluster structure (a Detail built without it), or an object
+// is not live in d, it returns one part with the scan's margin, which is
+// the smallest of the cluster margins and so the old, scan-wide judgement.
+func clusterParts(d *tracker.Detail, objs []string) []part {
+	whole := []part{{cluster: -1, margin: d.Margin, objects: objs}}
+	if len(d.PerCluster) == 0 {
+		return whole
+	}
+	row := make(map[string]int, len(d.Objects))
+	for i, od := range d.Objects {
+		row[od.Object] = i
+	}
+	var out []part
+	at := map[int]int{} // cluster → index in out
+	for _, o := range objs {
+		i, ok := row[o]
+		if !ok {
+			return whole
+		}
+		c := d.Objects[i].Cluster
+		if c < 0 || c >= len(d.PerCluster) || !slices.Contains(d.PerCluster[c].Rows, i) {
+			return whole
+		}
+		q, seen := at[c]
+		if !seen {
+			q = len(out)
+			at[c] = q
+			out = append(out, part{cluster: c, margin: d.PerCluster[c].Margin})
+		}
+		out[q].objects = append(out[q].objects, o)
+	}
+	return out
+}
+
+// splitTied sorts the parts of a changed association into those whose
+// cluster margin is within the ambiguity threshold (ties) and the clear
+// ones (regressions).
+func splitTied(parts []part, threshold float64) (tied, clear []part) {
+	for _, p := range parts {
+		if isTie(p.margin, threshold) {
+			tied = append(tied, p)
+		} else {
+			clear = append(clear, p)
+		}
+	}
+	return tied, clear
+}
+
+// partsTied reports whether every cluster that holds one of objs has a
+// margin within the threshold.
+func partsTied(d *tracker.Detail, objs []string, threshold float64) bool {
+	_, clear := splitTied(clusterParts(d, objs), threshold)
+	return len(clear) == 0
+}
+
+// clusterProb returns the probability the reference gives the tracker's
+// choice in the clusters of parts: the product over them of the cluster
+// posterior of the most probable listed cluster hypothesis that agrees
+// with every association the tracker reported for the cluster's objects
+// (assoc per row of d; −2 for a row the tracker said nothing about). The
+// posterior factorises over clusters (package tracker, "Clusters"), so the
+// product is the reference's probability of the tracker's choice in those
+// clusters whatever happens elsewhere. It is nil when one of them does not
+// list such a hypothesis. Without per-cluster structure (cluster −1) it is
+// the scan-level hypothesisProb.
+func clusterProb(d *tracker.Detail, parts []part, assoc []int) *float64 {
+	p := 1.0
+	for _, pt := range parts {
+		if pt.cluster < 0 {
+			return hypothesisProb(d, assoc)
+		}
+		cd := &d.PerCluster[pt.cluster]
+		found := false
+		for _, h := range cd.Hypotheses {
+			ok := len(h.Assoc) == len(cd.Rows)
+			for a, row := range cd.Rows {
+				if !ok {
+					break
+				}
+				if row >= len(assoc) || assoc[row] != -2 && h.Assoc[a] != assoc[row] {
+					ok = false
+				}
+			}
+			if ok {
+				p *= h.Prob
+				found = true
+				break
+			}
+		}
+		if !found {
+			return nil
+		}
+	}
+	return &p
+}
+
+// assocDivergence describes the share parts of a changed association at
+// step k (all in clear clusters, or all in tied ones). The divergence's
+// margin is the largest of the parts' cluster margins when they are tied
+// (each is at most that) and the smallest when they are clear (each is at
+// least that).
+func assocDivergence(k int, d *tracker.Detail, f mot.Frame, v view, parts []part, tied, reports bool, what string) result.Divergence {
+	var changed []string
+	for _, p := range parts {
+		changed = append(changed, p.objects...)
+	}
 	div := result.Divergence{Step: k, Kind: "association", Objects: changed}
-	var parts []string
+	var msgs []string
 	for _, o := range changed {
 		got := f.Tracks[v.byObj[o]].Detection
 		want := mot.NoDetection
@@ -164,24 +280,103 @@ func assocDivergence(k int, d *tracker.Detail, f mot.Frame, v view, changed []st
 				want = od.Detection
 			}
 		}
-		parts = append(parts, fmt.Sprintf("object %s: %s chose %s, the tracker %s", o, what, detName(want), detName(got)))
+		msgs = append(msgs, fmt.Sprintf("object %s: %s chose %s, the tracker %s", o, what, detName(want), detName(got)))
 	}
-	msg := strings.Join(parts, "; ")
-	if math.IsInf(d.Margin, 1) {
-		msg += "; the reference had a single hypothesis (margin ∞)"
+	msg := strings.Join(msgs, "; ")
+	m := parts[0].margin
+	for _, p := range parts[1:] {
+		if tied {
+			m = math.Max(m, p.margin)
+		} else {
+			m = math.Min(m, p.margin)
+		}
+	}
+	if parts[0].cluster < 0 {
+		if math.IsInf(m, 1) {
+			msg += "; the reference had a single hypothesis (margin ∞)"
+		} else {
+			msg += fmt.Sprintf("; margin %.4g", m)
+		}
 	} else {
-		m := d.Margin
+		var cs []string
+		for _, p := range parts {
+			if math.IsInf(p.margin, 1) {
+				cs = append(cs, fmt.Sprintf("∞ in the cluster of %s (a single hypothesis)", strings.Join(p.objects, ", ")))
+			} else {
+				cs = append(cs, fmt.Sprintf("%.4g in the cluster of %s", p.margin, strings.Join(p.objects, ", ")))
+			}
+		}
+		msg += "; margin " + strings.Join(cs, ", ")
+		if d.Margin < m && !tied {
+			msg += fmt.Sprintf(" (the scan's smallest margin, %.4g, is in another cluster and does not excuse this one)", d.Margin)
+		}
+	}
+	if !math.IsInf(m, 1) {
 		div.Margin = &m
-		msg += fmt.Sprintf("; margin %.4g", m)
 	}
-	if p := hypothesisProb(d, trackerAssoc(d, f, v, reports)); p != nil {
+	if p := clusterProb(d, parts, trackerAssoc(d, f, v, reports)); p != nil {
 		div.Probability = p
-		msg += fmt.Sprintf("; the reference gives the tracker's hypothesis probability %.4g", *p)
+		msg += fmt.Sprintf("; the reference gives the tracker's choice probability %.4g", *p)
 	} else {
-		msg += "; the tracker's hypothesis is not among the reference's k best"
+		msg += "; the tracker's choice is not among the reference's k best"
 	}
 	div.Message = msg
 	return div
+}
+
+// judgeChange records a changed association of the objects changed at step
+// k: the share in clusters whose own margin is within the threshold is a
+// tie, the share in clear clusters a regression naming only their objects.
+// It returns the objects recorded as tied.
+func judgeChange(b *builder, k int, d *tracker.Detail, f mot.Frame, v view, changed []string, threshold float64, what string) []string {
+	tied, clear := splitTied(clusterParts(d, changed), threshold)
+	var out []string
+	if len(clear) > 0 {
+		b.fail(assocDivergence(k, d, f, v, clear, false, true, what))
+	}
+	if len(tied) > 0 {
+		b.tie(assocDivergence(k, d, f, v, tied, true, true, what))
+		for _, p := range tied {
+			out = append(out, p.objects...)
+		}
+	}
+	return out
+}
+
+// ambiguous returns the rows of d whose association differs between the
+// best hypothesis of their cluster and another listed one within the
+// threshold of it: the objects a tracker that does not report
+// associations may rightly have resolved otherwise. Without per-cluster
+// structure it compares the scan's two best hypotheses when the scan's
+// margin is within the threshold.
+func ambiguous(d *tracker.Detail, threshold float64) []int {
+	var rows []int
+	if len(d.PerCluster) == 0 {
+		if isTie(d.Margin, threshold) && len(d.Hypotheses) > 1 {
+			for row := range d.Objects {
+				if d.Hypotheses[0].Assoc[row] != d.Hypotheses[1].Assoc[row] {
+					rows = append(rows, row)
+				}
+			}
+		}
+		return rows
+	}
+	for _, cd := range d.PerCluster {
+		if len(cd.Hypotheses) < 2 || !isTie(cd.Margin, threshold) {
+			continue
+		}
+		best := cd.Hypotheses[0]
+		for a, row := range cd.Rows {
+			for _, h := range cd.Hypotheses[1:] {
+				if isTie(h.Cost-best.Cost, threshold) && h.Assoc[a] != best.Assoc[a] {
+					rows = append(rows, row)
+					break
+				}
+			}
+		}
+	}
+	slices.Sort(rows)
+	return rows
 }
 
 func detName(id int) string {
@@ -382,7 +577,7 @@ func (s *settings) checkReference(j *job) result.Check {
 				}
 			}
 			if len(loose) > 0 {
-				div := assocDivergence(k, d, f, v, loose, true, "the reference")
+				div := assocDivergence(k, d, f, v, clusterParts(d, loose), true, true, "the reference")
 				div.Message += "; " + tangleNote(loose, tangled, stopped)
 				b.tie(div)
 				for _, o := range loose {
@@ -393,32 +588,26 @@ func (s *settings) checkReference(j *job) result.Check {
 				}
 			}
 			if len(changed) > 0 {
-				div := assocDivergence(k, d, f, v, changed, true, "the reference")
-				if isTie(d.Margin, j.sc.tie) {
-					b.tie(div)
-					for _, o := range changed {
-						if _, ok := j.ties[o]; !ok {
-							j.ties[o] = k
-						}
+				for _, o := range judgeChange(b, k, d, f, v, changed, j.sc.tie, "the reference") {
+					if _, ok := j.ties[o]; !ok {
+						j.ties[o] = k
 					}
-				} else {
-					b.fail(div)
 				}
 				for _, o := range changed {
 					stop(o, k)
 				}
 			}
 		}
-		if !ready.Association && isTie(d.Margin, j.sc.tie) && len(d.Hypotheses) > 1 {
+		if !ready.Association {
 			// The tracker does not say which hypothesis it took: from an
-			// ambiguous step on, the objects whose association differs
-			// between the two best hypotheses are no longer compared.
-			for row, od := range d.Objects {
-				if d.Hypotheses[0].Assoc[row] != d.Hypotheses[1].Assoc[row] {
-					stop(od.Object, k)
-					if _, ok := j.ties[od.Object]; !ok {
-						j.ties[od.Object] = k
-					}
+			// ambiguous step of their cluster on, the objects whose
+			// association differs between its best hypothesis and one
+			// within the threshold are no longer compared.
+			for _, row := range ambiguous(d, j.sc.tie) {
+				o := d.Objects[row].Object
+				stop(o, k)
+				if _, ok := j.ties[o]; !ok {
+					j.ties[o] = k
 				}
 			}
 		}
@@ -552,7 +741,7 @@ func (s *settings) checkConformance(j *job) result.Check {
 					// the prior of another object appearing at this step.
 					div := result.Divergence{Step: k, Kind: "identity", Objects: []string{od.Object, other},
 						Message: fmt.Sprintf("track %s starts from the prior of object %s but follows object %s over the run", est.Track, other, od.Object)}
-					if isTie(dd.Margin, j.sc.tie) {
+					if partsTied(&dd, div.Objects, j.sc.tie) {
 						b.tie(div)
 					} else {
 						idDivs = append(idDivs, div)
@@ -566,12 +755,7 @@ func (s *settings) checkConformance(j *job) result.Check {
 		// An association fault is named before the estimate faults of the
 		// same step.
 		if len(changed) > 0 {
-			div := assocDivergence(k, &dd, f, v, changed, true, "the reference restarted from the tracker's state")
-			if isTie(dd.Margin, j.sc.tie) {
-				b.tie(div)
-			} else {
-				b.fail(div)
-			}
+			judgeChange(b, k, &dd, f, v, changed, j.sc.tie, "the reference restarted from the tracker's state")
 		}
 		for _, d := range append(idDivs, estDivs...) {
 			b.fail(d)
