@@ -31,38 +31,56 @@
 // run:
 //
 //   - reference: step by step, every paired track's association is compared
-//     with the reference's. Let m be the reference's margin at the step,
-//     cost(2nd best hypothesis) − cost(best), and τ the ambiguity threshold
-//     (tie_margin of the project file). A changed association is a tie when
-//     m ≤ τ (an exact tie, m = 0, is always a tie) and a regression of kind
-//     "association" otherwise. The probability the reference gives the
-//     tracker's joint association is reported when that hypothesis is among
-//     its k best. Estimates are compared with the tolerance profile until the
-//     object's first tie or divergence; later steps of that object are not
-//     compared (the message says so), since after a legitimately different
-//     choice the two runs need not agree. For a tracker that does not report
-//     associations, an object stops being compared at the first step whose
-//     margin is within the threshold and whose two best hypotheses give it
-//     different detections. A stopped object's state may rightly differ
-//     from the reference's, and then so may the choice of every object
-//     whose association depends on it: at each step, a live object joined
-//     to a stopped one by a chain of objects sharing a detection (one in
-//     its gate in the reference's cost matrix, or the one its track
-//     reported) is entangled. A changed association of an entangled object
-//     is a tie whatever the margin, since the reference run's margin no
-//     longer describes the tracker's situation, and the object is stopped;
-//     its choice is left to the conformance check, which restarts from the
-//     tracker's own state. An entangled object that keeps the reference's
-//     association is still compared (its own state is still the
-//     reference's); for a tracker that does not report associations, an
-//     estimate difference of an entangled object is a tie likewise. Tracks
+//     with the reference's. The reference splits each scan into clusters
+//     (connected components of the gating graph; package tracker), whose
+//     posteriors are independent, so a change is judged in the cluster where
+//     it happens. Let m_c be the margin of cluster c at the step, cost(its 2nd
+//     best hypothesis) − cost(its best), and τ the ambiguity threshold
+//     (tie_margin of the project file). The changed objects are grouped by
+//     cluster: the change is a tie when m_c ≤ τ for every cluster c in which
+//     the tracker's association differs (an exact tie, m_c = 0, is always
+//     one); otherwise the objects of the clusters with m_c > τ are a
+//     regression of kind "association", with the smallest of their margins,
+//     and those of the tied clusters a tie, with the largest of theirs. A tie
+//     in one cluster thus never excuses a change in another, although the
+//     scan's margin, the smallest m_c, would. The probability reported is that
+//     of the tracker's choice in those clusters: the product over them of the
+//     cluster posterior of the most probable of the cluster's k best
+//     hypotheses that agrees with what the tracker reported there (none when
+//     one cluster does not list such a hypothesis); the posterior factorises
+//     over clusters, so this is the reference's probability of the tracker's
+//     choice whatever happens in the other clusters. A Detail without
+//     per-cluster records (one built by hand) is judged as one cluster, by the
+//     scan's margin and the probability of the scan's most probable listed
+//     hypothesis that agrees with the tracker. Estimates are compared with the
+//     tolerance profile until the object's first tie or divergence; later
+//     steps of that object are not compared (the message says so), since after
+//     a legitimately different choice the two runs need not agree. For a
+//     tracker that does not report associations, an object stops being
+//     compared at the first step where its cluster's margin is within the
+//     threshold and a hypothesis of the cluster within τ of the best gives it
+//     another detection (without per-cluster records: where the scan's margin
+//     is within the threshold and the scan's two best hypotheses differ for
+//     it). A stopped object's state may rightly differ from the reference's,
+//     and then so may the choice of every object whose association depends on
+//     it: at each step, a live object joined to a stopped one by a chain of
+//     objects sharing a detection (one in its gate in the reference's cost
+//     matrix, or the one its track reported) is entangled. A changed
+//     association of an entangled object is a tie whatever the margin, since
+//     the reference run's margin no longer describes the tracker's situation,
+//     and the object is stopped; its choice is left to the conformance check,
+//     which restarts from the tracker's own state. An entangled object that
+//     keeps the reference's association is still compared (its own state is
+//     still the reference's); for a tracker that does not report associations,
+//     an estimate difference of an entangled object is a tie likewise. Tracks
 //     for objects that are not alive, and live objects without a track, are
 //     divergences of kind "track-count".
 //   - conformance (trackers that report covariances): at each step k the
 //     reference restarts from the tracker's own estimates at step k−1
 //     (tracker.StepFrom; objects appearing at k start from their priors),
 //     predicts, associates and updates, and the tracker's step k is compared
-//     with that: its association (tie or regression, by that step's margin),
+//     with that: its association (tie or regression, by the margins of the
+//     restarted step's clusters in which it differs, as above),
 //     and, given the tracker's own association, its updated mean and
 //     covariance against the Kalman update (package kalman) with the
 //     detection it chose. A fault is thus placed at one step and told apart
@@ -71,7 +89,8 @@
 //     the next step restarts from the tracker's state. At an object's first
 //     step, a track whose estimate is instead another appearing object's
 //     prior updated with the tracker's detection is reported as an identity
-//     divergence (the track started as one object and follows another).
+//     divergence (the track started as one object and follows another), a
+//     tie when the clusters of both objects have margins within τ.
 //   - identity: compare.Follow matches tracks step by step; a track that
 //     changes object, or an object that changes track, is a divergence of
 //     kind "identity".
@@ -144,4 +163,8 @@
 //   - K. G. Murty, "An algorithm for ranking all the assignments in order of
 //     increasing cost", Operations Research 16(3):682–687, 1968 (the k best
 //     hypotheses whose margin decides a tie).
+//   - Y. Bar-Shalom, P. K. Willett, X. Tian, "Tracking and Data Fusion: A
+//     Handbook of Algorithms", YBS Publishing, 2011 (clustering of tracks
+//     that share measurements, which makes clusters independent; from
+//     memory).
 package runner
