@@ -167,13 +167,25 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 
 // perCluster describes each cluster on its own: its rows, gated
 // detections, margin and k best hypotheses with the cluster's posterior.
-// A cluster without hypotheses coasts.
+// A cluster without hypotheses coasts. The slices of all clusters share
+// three backing arrays.
 func (e *engine) perCluster(clusters []cluster, detIDs []int) []ClusterDetail {
 	out := make([]ClusterDetail, len(clusters))
+	var nDet, nHyp, nAssoc int
+	for ci := range clusters {
+		c := &clusters[ci]
+		q := min(e.k, len(c.hyps))
+		nDet += len(c.cols)
+		nHyp += q
+		nAssoc += q * len(c.rows)
+	}
+	dets := make([]int, nDet)
+	hyps := make([]Hypothesis, nHyp)
+	assoc := make([]int, nAssoc)
 	for ci := range clusters {
 		c := &clusters[ci]
 		cd := ClusterDetail{Rows: c.rows, Margin: math.Inf(1), Coasting: len(c.hyps) == 0, Exhaustive: c.exact}
-		cd.Detections = make([]int, len(c.cols))
+		cd.Detections, dets = dets[:len(c.cols):len(c.cols)], dets[len(c.cols):]
 		for a, j := range c.cols {
 			cd.Detections[a] = detIDs[j]
 		}
@@ -191,10 +203,11 @@ func (e *engine) perCluster(clusters []cluster, detIDs []int) []ClusterDetail {
 		if !c.exact {
 			norm = logSumExp(list, best)
 		}
-		cd.Hypotheses = make([]Hypothesis, len(list))
-		assoc := make([]int, len(list)*len(c.rows))
+		cd.Hypotheses, hyps = hyps[:len(list):len(list)], hyps[len(list):]
+		nr := len(c.rows)
 		for q, h := range list {
-			a := assoc[q*len(c.rows) : (q+1)*len(c.rows) : (q+1)*len(c.rows)]
+			var a []int
+			a, assoc = assoc[:nr:nr], assoc[nr:]
 			for i, col := range h.RowToCol {
 				a[i] = mot.NoDetection
 				if col < len(c.cols) {
