@@ -115,6 +115,7 @@ func TestClusterMarginJudgesChange(t *testing.T) {
 				if c.Status != result.Fail || f == nil {
 					t.Fatalf("%s: status %s, want a regression: %s", check, c.Status, c.Message)
 				}
+				t.Logf("%s: %s", check, f.Message)
 				if f.Step != 1 || f.Kind != "association" || !slices.Equal(f.Objects, []string{"forklift"}) {
 					t.Fatalf("%s: first divergence %+v, want step 1, association, the forklift alone", check, *f)
 				}
