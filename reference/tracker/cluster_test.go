@@ -119,6 +119,7 @@ func TestPerClusterAgainstBruteForce(t *testing.T) {
 				}
 			}
 		}
+		checkPerCluster(t, &d)
 		if d.Margin != minMargin {
 			t.Fatalf("trial %d: scan margin %.17g, smallest cluster margin %.17g", trial, d.Margin, minMargin)
 		}
@@ -214,5 +215,84 @@ func TestPerClusterTieAndClear(t *testing.T) {
 	// swapped hypotheses.
 	if len(pal.Hypotheses) < 2 || pal.Hypotheses[0].Prob != pal.Hypotheses[1].Prob {
 		t.Fatalf("pallet hypotheses %+v, want two of equal probability first", pal.Hypotheses)
+	}
+}
+
+// checkPerCluster checks the per-cluster records of d against the rest of
+// it: every row in exactly one cluster, which its Cluster names; the scan
+// margin the smallest cluster margin; a coasting cluster's objects
+// coasting; each cluster's best hypothesis the associations the scan
+// chose; costs non-decreasing and probabilities in [0, 1] summing to at
+// most one.
+func checkPerCluster(t *testing.T, d *Detail) {
+	t.Helper()
+	if len(d.PerCluster) != d.Clusters {
+		t.Fatalf("%d cluster records for %d clusters", len(d.PerCluster), d.Clusters)
+	}
+	seen := make([]bool, len(d.Objects))
+	m := math.Inf(1)
+	for ci, cd := range d.PerCluster {
+		m = math.Min(m, cd.Margin)
+		if !(cd.Margin >= 0) {
+			t.Fatalf("cluster %d: margin %g, want ≥ 0", ci, cd.Margin)
+		}
+		for a, row := range cd.Rows {
+			if row < 0 || row >= len(d.Objects) || seen[row] || d.Objects[row].Cluster != ci {
+				t.Fatalf("cluster %d: row %d out of range, repeated or with another cluster index", ci, row)
+			}
+			seen[row] = true
+			if d.Objects[row].Coasting != cd.Coasting {
+				t.Fatalf("cluster %d: coasting %v, its object %s %v", ci, cd.Coasting, d.Objects[row].Object, d.Objects[row].Coasting)
+			}
+			if !cd.Coasting && cd.Hypotheses[0].Assoc[a] != d.Objects[row].Detection {
+				t.Fatalf("cluster %d: best gives %s detection %d, the scan %d", ci, d.Objects[row].Object, cd.Hypotheses[0].Assoc[a], d.Objects[row].Detection)
+			}
+		}
+		if cd.Coasting != (len(cd.Hypotheses) == 0) || cd.Coasting && !math.IsInf(cd.Margin, 1) {
+			t.Fatalf("cluster %d: coasting %v with %d hypotheses and margin %g", ci, cd.Coasting, len(cd.Hypotheses), cd.Margin)
+		}
+		var sum float64
+		for q, h := range cd.Hypotheses {
+			if !(h.Prob >= 0 && h.Prob <= 1) || q > 0 && h.Cost < cd.Hypotheses[q-1].Cost || len(h.Assoc) != len(cd.Rows) {
+				t.Fatalf("cluster %d hypothesis %d: cost %g, probability %g, %d associations", ci, q, h.Cost, h.Prob, len(h.Assoc))
+			}
+			sum += h.Prob
+		}
+		if sum > 1+1e-12 {
+			t.Fatalf("cluster %d: probabilities sum to %.15g", ci, sum)
+		}
+	}
+	for row, ok := range seen {
+		if !ok {
+			t.Fatalf("row %d in no cluster", row)
+		}
+	}
+	if d.Margin != m {
+		t.Fatalf("scan margin %g, smallest cluster margin %g", d.Margin, m)
+	}
+}
+
+// TestPerClusterCoasting: with P_D = 1 an object with no detection in its
+// gate forms a cluster of its own without a feasible association; its
+// record coasts, with no hypotheses and an infinite margin, and the other
+// cluster keeps its single hypothesis of probability 1.
+func TestPerClusterCoasting(t *testing.T) {
+	md := posModel(0, 1, 1, 0.01, 0.99)
+	states := []State{
+		{ID: "tug", Mean: []float64{0, 0}, Cov: mot.Identity(2), Predicted: true},
+		{ID: "mooring", Mean: []float64{100, 0}, Cov: mot.Identity(2), Predicted: true},
+	}
+	scan := mot.Scan{Step: 2, Detections: []mot.Detection{{ID: 0, Z: []float64{0.5, 0}}}}
+	d, err := StepFrom(md, states, scan, 5, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkPerCluster(t, &d)
+	tug, moor := d.PerCluster[d.Objects[0].Cluster], d.PerCluster[d.Objects[1].Cluster]
+	if !moor.Coasting || len(moor.Hypotheses) != 0 || !math.IsInf(moor.Margin, 1) {
+		t.Fatalf("mooring's cluster %+v, want coasting without hypotheses", moor)
+	}
+	if tug.Coasting || len(tug.Hypotheses) != 1 || tug.Hypotheses[0].Prob != 1 || !slices.Equal(tug.Detections, []int{0}) {
+		t.Fatalf("tug's cluster %+v, want one hypothesis of probability 1 on detection 0", tug)
 	}
 }

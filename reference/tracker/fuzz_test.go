@@ -10,8 +10,9 @@ import (
 
 // FuzzStepFrom builds small scans from the fuzz input and checks that a
 // step never panics, that its optimum equals one dense solve of the whole
-// augmented matrix and brute force, and that the posterior numbers are
-// probabilities.
+// augmented matrix and brute force, that the posterior numbers are
+// probabilities, and that the per-cluster records are consistent
+// (checkPerCluster).
 func FuzzStepFrom(f *testing.F) {
 	f.Add([]byte{2, 3, 9, 0, 0, 50, 50, 10, 10, 48, 52, 200, 3, 1, 1})
 	f.Add([]byte{1, 0, 255})
@@ -73,6 +74,7 @@ func FuzzStepFrom(f *testing.F) {
 		if sum > 1+1e-12 {
 			t.Fatalf("probabilities sum to %.15g", sum)
 		}
+		checkPerCluster(t, &d)
 		for _, o := range d.Objects {
 			for _, v := range append(append([]float64{}, o.Mean...), o.Cov.Data...) {
 				if math.IsNaN(v) || math.IsInf(v, 0) {
