@@ -193,11 +193,15 @@ type Divergence struct {
 	Kind    string   `json:"kind"`
 	Objects []string `json:"objects,omitempty"`
 	Message string   `json:"message"`
-	// Margin is the reference's cost gap between its best and second-best
-	// hypotheses at the step, for association divergences.
+	// Margin is, for association divergences, the reference's cost gap
+	// between its best and second-best hypotheses in the clusters (connected
+	// components of the gating graph) where the tracker's association
+	// differs: the smallest such gap among the clusters judged.
 	Margin *float64 `json:"margin,omitempty"`
 	// Probability is the probability the reference gives the tracker's
-	// hypothesis, when it is among the reference's k best.
+	// choice in those clusters (the product of the clusters' posteriors of
+	// the tracker's cluster hypotheses), when each is among its cluster's k
+	// best.
 	Probability *float64 `json:"probability,omitempty"`
 }
 
