@@ -3,7 +3,6 @@ package result_test
 import (
 	"bytes"
 	"encoding/json"
-	"flag"
 	"math"
 	"os"
 	"path/filepath"
@@ -18,8 +17,6 @@ import (
 	"trackgate/harness/result"
 	"trackgate/harness/result/sample"
 )
-
-var update = flag.Bool("update", false, "rewrite testdata/sample.json from the sample suite")
 
 func ptr[T any](v T) *T { return &v }
 
@@ -104,11 +101,6 @@ func TestRoundTripSample(t *testing.T) {
 	var anyv any
 	if err := json.Unmarshal(a, &anyv); err != nil {
 		t.Fatalf("encoding/json rejects the file: %v", err)
-	}
-	if *update {
-		if err := result.WriteFile("testdata/sample.json", a); err != nil {
-			t.Fatal(err)
-		}
 	}
 }
 

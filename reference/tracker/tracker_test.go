@@ -28,7 +28,8 @@ func posModel(q, r, pd, lambda, pg float64) mot.Model {
 
 // workedScan is the GNN example of CHECK-VALUES §6.3 (values computed there
 // with scipy 1.10.1 / numpy 1.24.2 and checked by brute force; the cost
-// follows Blackman & Popoli 1999, §6.5, c = −ln(P_D·g/λ), miss −ln(1−P_D)).
+// follows Blackman & Popoli 1999, §6.5 (section number from memory),
+// c = −ln(P_D·g/λ), miss −ln(1−P_D)).
 // Track 1: ẑ = (0,0), S = [[4,1],[1,3]]; track 2: ẑ = (5,5), S = 2I;
 // P_D = 0.9, λ = 0.01, P_G = 0.99. With R = 0.5·I the predicted covariances
 // are S − R.
