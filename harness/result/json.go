@@ -8,10 +8,11 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"reflect"
 	"strconv"
 	"strings"
+
+	"trackgate/harness/internal/atomicfile"
 )
 
 // The strings that stand for non-finite values in the JSON file.
@@ -155,40 +156,11 @@ func Write(path string, s *Suite) error {
 }
 
 // WriteFile writes data to path atomically (temporary file in the same
-// directory, fsync, rename). The file gets mode 0644.
-func WriteFile(path string, data []byte) (err error) {
-	dir := filepath.Dir(path)
-	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
-	if err != nil {
-		return fmt.Errorf("result: write %s: %w", path, err)
-	}
-	tmp := f.Name()
-	defer func() {
-		if err != nil {
-			f.Close()
-			os.Remove(tmp)
-		}
-	}()
-	if _, err = f.Write(data); err != nil {
-		return fmt.Errorf("result: write %s: %w", path, err)
-	}
-	if err = f.Chmod(0o644); err != nil {
-		return fmt.Errorf("result: write %s: %w", path, err)
-	}
-	if err = f.Sync(); err != nil {
-		return fmt.Errorf("result: write %s: sync: %w", path, err)
-	}
-	if err = f.Close(); err != nil {
-		return fmt.Errorf("result: write %s: %w", path, err)
-	}
-	if err = os.Rename(tmp, path); err != nil {
-		return fmt.Errorf("result: write %s: %w", path, err)
-	}
-	// Make the rename durable; a directory that cannot be synced (some
-	// file systems) is not an error.
-	if d, derr := os.Open(dir); derr == nil {
-		d.Sync()
-		d.Close()
+// directory, fsync, rename, fsync of the directory; see
+// harness/internal/atomicfile). The file gets mode 0644.
+func WriteFile(path string, data []byte) error {
+	if err := atomicfile.WriteBytes(path, data); err != nil {
+		return fmt.Errorf("result: %w", err)
 	}
 	return nil
 }

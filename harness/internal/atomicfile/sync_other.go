@@ -1,6 +1,6 @@
 //go:build !unix
 
-package golden
+package atomicfile
 
 // isUnsupportedSync treats every folder sync error as unsupported: on these
 // systems (Windows) a folder cannot be opened for sync.
