@@ -4,6 +4,7 @@ import (
 	"cmp"
 	"errors"
 	"fmt"
+	"maps"
 	"math"
 	"slices"
 	"sort"
@@ -134,7 +135,13 @@ func (e *engine) associate(step int, ids []string, xs, ps [][]float64, scan mot.
 		}
 	}
 
-	// Updates with the best hypothesis.
+	if e.force != nil {
+		if err := e.applyForce(step, &cm, clusters, rowToDet); err != nil {
+			return Detail{}, err
+		}
+	}
+
+	// Updates with the best hypothesis (or the forced association).
 	d.Objects = make([]ObjectDetail, r)
 	per := 2 * (n + n*n)
 	obuf := make([]float64, r*per)
@@ -507,4 +514,68 @@ func (e *engine) hypotheses(d *Detail, cl []*cluster, rowToDet, detIDs []int, r 
 			d.Margin = math.Min(d.Margin, c.hyps[1].Cost-c.hyps[0].Cost)
 		}
 	}
+}
+
+// applyForce replaces the best association of every cluster that holds an
+// object named in e.force by the forced one, in rowToDet (detection
+// column per row, −1 for a miss). A cluster is forced whole or not at all,
+// and the forced event must be feasible: every detection inside the
+// object's gate and taken once, a miss only when its cost is finite.
+func (e *engine) applyForce(step int, cm *CostMatrix, clusters []cluster, rowToDet []int) error {
+	row := make(map[string]int, len(cm.Objects))
+	for i, o := range cm.Objects {
+		row[o] = i
+	}
+	for _, o := range slices.Sorted(maps.Keys(e.force)) {
+		if _, ok := row[o]; !ok {
+			return fmt.Errorf("tracker: step %d: forced object %q is not live, want one of the scan's objects", step, o)
+		}
+	}
+	col := make(map[int]int, len(cm.Detections))
+	for j, id := range cm.Detections {
+		col[id] = j
+	}
+	for _, c := range clusters {
+		named := 0
+		for _, r := range c.rows {
+			if _, ok := e.force[cm.Objects[r]]; ok {
+				named++
+			}
+		}
+		if named == 0 {
+			continue
+		}
+		if named != len(c.rows) {
+			var objs []string
+			for _, r := range c.rows {
+				objs = append(objs, cm.Objects[r])
+			}
+			return fmt.Errorf("tracker: step %d: the association is forced for %d of the %d objects of the cluster %v, want all or none", step, named, len(c.rows), objs)
+		}
+		used := map[int]string{}
+		for _, r := range c.rows {
+			o := cm.Objects[r]
+			det := e.force[o]
+			if det == mot.NoDetection {
+				if math.IsInf(cm.Miss[r], 1) {
+					return fmt.Errorf("tracker: step %d: object %q is forced to miss, but a miss is impossible (P_D = 1)", step, o)
+				}
+				rowToDet[r] = -1
+				continue
+			}
+			j, ok := col[det]
+			if !ok {
+				return fmt.Errorf("tracker: step %d: object %q is forced to detection %d, which is not in the scan", step, o, det)
+			}
+			if !slices.ContainsFunc(cm.Gated[r], func(en Entry) bool { return en.Col == j }) {
+				return fmt.Errorf("tracker: step %d: object %q is forced to detection %d, which is outside its gate", step, o, det)
+			}
+			if other, dup := used[det]; dup {
+				return fmt.Errorf("tracker: step %d: detection %d is forced on both %q and %q, want it taken once", step, det, other, o)
+			}
+			used[det] = o
+			rowToDet[r] = j
+		}
+	}
+	return nil
 }

@@ -93,6 +93,18 @@
 //     true share: a cluster whose list stops at its k-th hypothesis (cost
 //     c_k) holds at most (N − k)·exp(−c_k) more, with N its candidate count.
 //
+// # Forced association
+//
+// StepWith is the single step of StepFrom with the association of named
+// objects given: the clusters holding them take the given event instead
+// of their best, whole (every object of such a cluster is named) and only
+// when feasible (each detection inside its object's gate and used once, a
+// miss only when P_D < 1). The ranking of the scan is reported as
+// StepFrom reports it; only the updates follow the forced event. Chained
+// step by step from its own posteriors, it continues the reference down
+// the branch another tracker took after a tie, and with nothing forced the
+// chain is the reference's own run, bit for bit.
+//
 // # Determinism
 //
 // Like package kalman, every product that feeds a sum is rounded by an

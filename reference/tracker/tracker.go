@@ -294,10 +294,37 @@ type State struct {
 // conformance checks that restart the reference from another tracker's
 // estimate at step k−1. The states are not modified.
 func StepFrom(model mot.Model, states []State, scan mot.Scan, k, enumLimit int) (Detail, error) {
+	return stepStates(model, states, scan, k, enumLimit, nil)
+}
+
+// StepWith is StepFrom with the association of some objects given rather
+// than chosen: force maps an object id to the id of the detection it is
+// updated with, or to mot.NoDetection for a miss. It is meant for
+// following another tracker down a branch the reference ranks below its
+// best, as after a tie that tracker resolved the other way.
+//
+// Forcing is by whole clusters: every object of a cluster that holds a
+// forced object must be named, and the forced event must be feasible
+// (each detection in the object's gate and used once, a miss only when
+// P_D < 1); otherwise StepWith returns an error naming the step, object
+// and detection. Clusters without a forced object take their best
+// hypothesis, exactly as in StepFrom. The ranking of the scan (Cost,
+// Hypotheses, Margin, BestProb, CoveredMass, PerCluster) is that of
+// StepFrom, unchanged by the forcing; ObjectDetail's Detection, Mean, Cov
+// and NIS follow the association used. An empty or nil force is StepFrom.
+func StepWith(model mot.Model, states []State, scan mot.Scan, k, enumLimit int, force map[string]int) (Detail, error) {
+	if len(force) == 0 {
+		force = nil
+	}
+	return stepStates(model, states, scan, k, enumLimit, force)
+}
+
+func stepStates(model mot.Model, states []State, scan mot.Scan, k, enumLimit int, force map[string]int) (Detail, error) {
 	eng, err := newEngine(model, k, enumLimit)
 	if err != nil {
 		return Detail{}, err
 	}
+	eng.force = force
 	n := model.StateDim
 	ids := make([]string, len(states))
 	xs := make([][]float64, len(states))
@@ -337,6 +364,9 @@ type engine struct {
 	logLambda float64
 	k         int
 	enumLimit int
+	// force, when not nil, gives the association of named objects
+	// (StepWith).
+	force map[string]int
 }
 
 func newEngine(md mot.Model, k, enumLimit int) (*engine, error) {
