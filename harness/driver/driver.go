@@ -174,6 +174,10 @@ var onReply func()
 // message of job has been written, with the run's context.
 var onRunEnd func(job *Job, runCtx context.Context)
 
+// onHalt, when set (by tests), is called when a run's deadline has fired and
+// halt starts: the moment after which the run's process is not reused.
+var onHalt func()
+
 // peer is a tracker process in conversation.
 type peer struct {
 	p      *proc
@@ -237,6 +241,9 @@ func (s *peer) deadline(t time.Time) {
 }
 
 func (s *peer) halt() {
+	if onHalt != nil {
+		onHalt()
+	}
 	s.mu.Lock()
 	s.halted = true
 	past := time.Unix(1, 0)

@@ -542,12 +542,18 @@ func TestStartTimeout(t *testing.T) {
 func TestLateRunDeadline(t *testing.T) {
 	cfg := fakeConfig("many")
 	cfg.RunTimeout = 1500 * time.Millisecond
+	// The run's deadline closes runCtx.Done before the context starts halt
+	// in its own goroutine, so the hook waits for halt itself: only then is
+	// the race the driver guards against certain to have happened.
+	halting := make(chan struct{}, 4)
+	onHalt = func() { halting <- struct{}{} }
 	onRunEnd = func(job *Job, runCtx context.Context) {
 		if job.Run.Index == 0 {
 			<-runCtx.Done()
+			<-halting
 		}
 	}
-	defer func() { onRunEnd = nil }()
+	defer func() { onRunEnd, onHalt = nil, nil }()
 	before := len(startedPids())
 	res := RunMany(context.Background(), cfg, []Job{warehouseJob(0, 3), warehouseJob(1, 3)}, 1)
 	for i, r := range res {
