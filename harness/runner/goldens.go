@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -35,6 +36,53 @@ type artefact struct {
 	check  *builder
 	// blessed is the file read from disk (fresh goldens only).
 	blessed golden.File
+	// inconsistent marks the tracker's metrics golden when it disagrees
+	// with the run although the tracker's output golden agrees: the two
+	// were not blessed together (see pairTracker).
+	inconsistent bool
+}
+
+// pairTracker judges the tracker's metrics golden together with its
+// output golden, since both are blessed as one unit: when the output
+// differs (or has no fresh golden), a metrics difference is part of the
+// failure; when the output
+// agrees but the run legitimately parts from it after a tied association,
+// the metrics are not compared; when the output agrees and nothing parts,
+// a metrics difference means the metrics golden is stale or was not
+// blessed with the output, an error.
+func pairTracker(j *job, arts []*artefact) {
+	out, met := trackerPair(arts)
+	if met == nil || met.status != golden.Failing {
+		return
+	}
+	switch {
+	case out == nil || out.status != golden.Passing:
+		// The output differs from its golden, or there is no fresh
+		// output golden to hold the metrics against: the metrics
+		// difference is a failure of its own.
+	case j.partedFromGolden:
+		met.status = golden.Passing
+		met.detail = ""
+		met.check = newBuilder("golden", met.check.max)
+		met.check.notes = append(met.check.notes, "the tracker's metrics were not compared with the golden: the run parts from it after a tied association")
+	default:
+		met.inconsistent = true
+		met.detail = fmt.Sprintf("the tracker's blessed metrics %s disagree with its blessed output, which the run reproduces: the metrics golden is stale or was not blessed with the output; bless again (%s)", met.path, met.detail)
+	}
+}
+
+// trackerPair returns the tracker's output and metrics artefacts of arts
+// (nil when absent).
+func trackerPair(arts []*artefact) (out, met *artefact) {
+	for _, a := range arts {
+		switch {
+		case a.id.Tracker != "" && a.id.Kind == golden.Output:
+			out = a
+		case a.id.Tracker != "" && a.id.Kind == golden.Metrics:
+			met = a
+		}
+	}
+	return out, met
 }
 
 // artefacts lists the golden files of job j. withTracker adds the
@@ -177,10 +225,6 @@ func (s *settings) judgeArtefact(j *job, a *artefact) {
 			}
 		}
 		r := compare.Metrics(j.sc.profile, want, metricMap(a.file.Metrics))
-		if a.id.Tracker != "" && j.partedFromGolden && !r.OK() {
-			a.detail = "the tracker's metrics were not compared with the golden: the run parts from it after a changed association"
-			return
-		}
 		if !r.OK() {
 			a.status = golden.Failing
 			a.detail = fmt.Sprintf("%s differ from the golden %s: %d difference(s), first %s", a.what, a.path, len(r.Diffs), describe(r.Diffs[0]))
@@ -201,10 +245,17 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 		a.detail = fmt.Sprintf("the tracker's tracks could not be paired with the golden %s: %v", a.path, err)
 		return
 	}
-	// Associations, step by step, judged with the reference's margin.
-	// After a changed association (tie or not) a track is no longer
-	// compared: the two runs legitimately part there, or the first
+	// Associations, step by step, judged like the reference check: by the
+	// margins of the reference's clusters in which the association
+	// changed (clusterParts), the blessed tracks being mapped to the
+	// reference's objects by their own alignment with the reference's
+	// frames. After a changed association (tie or not) a track is no
+	// longer compared: the two runs legitimately part there, or the first
 	// divergence has been reported.
+	objOf, err := alignRun(j.ex.Frames, f.Frames, j.ex.Steps, j.sc.tie, compare.Options{Position: j.sc.pos, Cutoff: s.cutoff})
+	if err != nil {
+		objOf = nil // judged by the scan's margin (clusterParts without objects)
+	}
 	want := map[int]mot.Frame{}
 	for _, fr := range f.Frames {
 		want[fr.Step] = fr
@@ -220,14 +271,14 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 			byName[t.Track] = t
 		}
 		var changed []string
-		var msgs []string
+		msgs := map[string]string{}
 		for _, t := range fr.Tracks {
 			w, ok := byName[names[t.Track]]
 			if _, st := stopped[w.Track]; !ok || st || !w.HasDetection || !t.HasDetection || w.Detection == t.Detection {
 				continue
 			}
 			changed = append(changed, w.Track)
-			msgs = append(msgs, fmt.Sprintf("track %s (blessed %s): blessed %s, now %s", t.Track, w.Track, detName(w.Detection), detName(t.Detection)))
+			msgs[w.Track] = fmt.Sprintf("track %s (blessed %s): blessed %s, now %s", t.Track, w.Track, detName(w.Detection), detName(t.Detection))
 		}
 		if len(changed) == 0 {
 			continue
@@ -235,19 +286,59 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 		for _, c := range changed {
 			stopped[c] = fr.Step
 		}
-		div := result.Divergence{Step: fr.Step, Kind: "association", Objects: changed, Message: strings.Join(msgs, "; ")}
-		if k < len(j.ex.Steps) {
-			m := j.ex.Steps[k].Margin
-			if !math.IsInf(m, 0) {
+		if k >= len(j.ex.Steps) {
+			var all []string
+			for _, c := range changed {
+				all = append(all, msgs[c])
+			}
+			b.fail(result.Divergence{Step: fr.Step, Kind: "association", Objects: changed, Message: strings.Join(all, "; ")})
+			continue
+		}
+		d := &j.ex.Steps[k]
+		// The object each changed blessed track stands for; a track the
+		// alignment left unpaired keeps its name, which clusterParts does
+		// not find among the live objects, so the scan's margin judges it.
+		objs := make([]string, len(changed))
+		track := map[string]string{}
+		for i, c := range changed {
+			objs[i] = c
+			if o, ok := objOf[c]; ok {
+				objs[i] = o
+			}
+			track[objs[i]] = c
+		}
+		tied, clear := splitTied(clusterParts(d, objs), j.sc.tie)
+		emit := func(ps []part, tie bool) {
+			if len(ps) == 0 {
+				return
+			}
+			div := result.Divergence{Step: fr.Step, Kind: "association"}
+			var all []string
+			m := ps[0].margin
+			for _, p := range ps {
+				if tie {
+					m = max(m, p.margin)
+				} else {
+					m = min(m, p.margin)
+				}
+				for _, o := range p.objects {
+					div.Objects = append(div.Objects, o)
+					all = append(all, msgs[track[o]])
+				}
+			}
+			div.Message = strings.Join(all, "; ")
+			if !math.IsInf(m, 0) && !math.IsNaN(m) {
 				div.Margin = &m
 			}
-			if isTie(m, j.sc.tie) {
-				div.Message += "; the reference's margin is within the ambiguity threshold"
+			if tie {
+				div.Message += "; the reference's margin in the cluster is within the ambiguity threshold"
 				b.tie(div)
-				continue
+			} else {
+				b.fail(div)
 			}
 		}
-		b.fail(div)
+		emit(clear, false)
+		emit(tied, true)
 	}
 	// Values, leaving out tracks from the step they stopped being compared.
 	filter := func(frames []mot.Frame, blessedName func(string) string) []mot.Frame {
@@ -347,6 +438,9 @@ func (s *settings) checkGolden(j *job) []result.Check {
 	var msgs, missing []string
 	for _, a := range arts {
 		s.judgeArtefact(j, a)
+	}
+	pairTracker(j, arts)
+	for _, a := range arts {
 		if a.id.Kind == golden.Output && j.res.Fault != nil && a.status == golden.Missing {
 			continue
 		}
@@ -363,10 +457,15 @@ func (s *settings) checkGolden(j *job) []result.Check {
 			out.c.Status = result.Error
 			msgs = append(msgs, a.detail)
 		case golden.Failing:
-			if a.harness {
+			switch {
+			case a.harness:
 				out.c.Status = result.Error
 				msgs = append(msgs, a.detail+" (trackgate itself changed, not the tracker)")
-			} else {
+			case a.inconsistent:
+				out.c.Status = result.Error
+				msgs = append(msgs, a.detail)
+			default:
+				out.c.Status = result.Worst(out.c.Status, result.Fail)
 				msgs = append(msgs, a.detail)
 				if p := s.leaveActual(a, ci); p != "" {
 					msgs = append(msgs, "actual output left at "+p)
@@ -514,6 +613,7 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 		for _, a := range arts[i] {
 			s.judgeArtefact(j, a)
 		}
+		pairTracker(j, arts[i])
 	})
 	for i, j := range jobs {
 		where := fmt.Sprintf("%s run %d", j.sc.spec.Name, j.index)
@@ -530,9 +630,14 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 		case j.score == nil:
 			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the tracker's metrics could not be computed; its goldens were not written", where))
 		}
-		for _, a := range arts[i] {
+		acts := make([]golden.Action, len(arts[i]))
+		for k, a := range arts[i] {
+			acts[k] = pol.Decide(a.status)
+		}
+		coupleTracker(arts[i], acts, pol)
+		for k, a := range arts[i] {
 			rel, _ := filepath.Rel(s.goldenRoot, a.path)
-			switch pol.Decide(a.status) {
+			switch acts[k] {
 			case golden.Keep:
 				rep.Unchanged = append(rep.Unchanged, rel)
 			case golden.Fail:
@@ -579,6 +684,41 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 		}
 	}
 	return rep, nil
+}
+
+// coupleTracker makes the tracker's output and metrics goldens one unit:
+// when either is to be rewritten, so is the other (or, where the policy
+// forbids writing, both are refused).
+func coupleTracker(arts []*artefact, acts []golden.Action, pol golden.Policy) {
+	io, im := -1, -1
+	for k, a := range arts {
+		switch {
+		case a.id.Tracker != "" && a.id.Kind == golden.Output:
+			io = k
+		case a.id.Tracker != "" && a.id.Kind == golden.Metrics:
+			im = k
+		}
+	}
+	if io < 0 || im < 0 {
+		return
+	}
+	for _, pair := range [][2]int{{io, im}, {im, io}} {
+		a, b := pair[0], pair[1]
+		if acts[a] != golden.Keep && acts[b] == golden.Keep && !sameBytes(arts[b]) {
+			acts[b] = pol.Decide(golden.Failing)
+		}
+	}
+}
+
+// sameBytes reports whether the golden file of a already holds exactly
+// what the run would write there, so that rewriting it changes nothing.
+func sameBytes(a *artefact) bool {
+	want, err := golden.Marshal(a.file)
+	if err != nil {
+		return false
+	}
+	have, err := os.ReadFile(a.path)
+	return err == nil && bytes.Equal(have, want)
 }
 
 func anyErr(scens []*scen) bool {
