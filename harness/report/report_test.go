@@ -22,8 +22,10 @@ import (
 var update = flag.Bool("update", false, "rewrite the golden files in testdata")
 
 // golden compares got with testdata/name, or rewrites it under -update.
-// The golden files were reviewed by hand when written; the other tests
-// check the facts in them independently.
+// The golden files are change detectors, not truth: the renderers wrote
+// them and they were reviewed by eye. Whether a report is right is checked
+// independently, from the input suite, by the assertions beside each call
+// and by the *MatchesSuite tests in derived_test.go.
 func golden(t *testing.T, name string, got []byte) {
 	t.Helper()
 	path := filepath.Join("testdata", name)
