@@ -1,7 +1,9 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
+	"slices"
 	"sort"
 
 	"trackgate/harness/config"
@@ -23,6 +25,51 @@ type runScore struct {
 	// whole maps each whole-run metric name to its value (golden records).
 	whole map[string]float64
 	err   error
+	// skipped counts the matched tracks whose covariance is not positive
+	// definite, left out of the NEES; firstSkip describes the first.
+	skipped   int
+	firstSkip string
+}
+
+// withoutSingular returns frames in which every track mapped to a live
+// object whose covariance is not positive definite (metrics.NEES fails
+// with *metrics.NotPositiveDefiniteError) reports no covariance, with the
+// number of such tracks and a description of the first. frames is not
+// modified; frames without such a track are shared.
+func withoutSingular(frames []mot.Frame, mapping []map[string]string, truth []mot.Truth) ([]mot.Frame, int, string) {
+	out := frames
+	n, first, cloned := 0, "", false
+	for k, fr := range frames {
+		alive := make(map[string][]float64, len(truth[k].Objects))
+		for _, o := range truth[k].Objects {
+			alive[o.Object] = o.X
+		}
+		copied := false
+		for i, e := range fr.Tracks {
+			x, ok := alive[mapping[k][e.Track]]
+			if e.Cov.Rows == 0 || !ok || len(x) != len(e.Mean) {
+				continue
+			}
+			_, err := metrics.NEES(x, e.Mean, e.Cov)
+			var npd *metrics.NotPositiveDefiniteError
+			if !errors.As(err, &npd) {
+				continue
+			}
+			if n == 0 {
+				first = fmt.Sprintf("step %d track %s: %v", fr.Step, e.Track, err)
+			}
+			n++
+			if !copied {
+				if !cloned {
+					out, cloned = slices.Clone(frames), true
+				}
+				out[k].Tracks = slices.Clone(fr.Tracks)
+				copied = true
+			}
+			out[k].Tracks[i].Cov = mot.Mat{}
+		}
+	}
+	return out, n, first
 }
 
 // Whole-run metric names, as recorded in golden metrics files and as
@@ -36,6 +83,9 @@ const (
 	MetricMissed       = "missed_objects"
 	MetricMeanNEES     = "mean_nees"
 	MetricNEESInBand   = "nees_in_band"
+	// MetricNEESSkipped counts the matched tracks whose covariance is not
+	// positive definite, left out of the NEES (recorded only when > 0).
+	MetricNEESSkipped = "nees_skipped"
 	// MetricGOSPAStep and MetricNEESStep are the per-step series.
 	MetricGOSPAStep = "gospa"
 	MetricNEESStep  = "nees"
@@ -101,7 +151,12 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 	if steps > 0 {
 		m.MeanGOSPA = sum / float64(steps)
 	}
-	sc, err := metrics.ScoreRun(run.Truth[:steps], frames[:steps], mapping, metrics.Select{Position: pos, Velocity: vel})
+	// NEES needs a positive definite covariance; the protocol admits any
+	// symmetric one (a tracker may report zeros for a state it holds
+	// exactly). Such samples are left out of the NEES, counted and named;
+	// everything else is scored as usual.
+	scored, skipped, firstSkip := withoutSingular(frames[:steps], mapping, run.Truth[:steps])
+	sc, err := metrics.ScoreRun(run.Truth[:steps], scored, mapping, metrics.Select{Position: pos, Velocity: vel})
 	if err != nil {
 		return &runScore{err: err}
 	}
@@ -113,6 +168,10 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 		MetricMeanGOSPA: m.MeanGOSPA, MetricPositionRMSE: m.PositionRMSE,
 		MetricIDSwitches: float64(m.IDSwitches), MetricTrackBreaks: float64(m.TrackBreaks),
 		MetricFalseTracks: float64(m.FalseTracks), MetricMissed: float64(m.MissedObjects),
+	}
+	rs.skipped, rs.firstSkip = skipped, firstSkip
+	if skipped > 0 {
+		rs.whole[MetricNEESSkipped] = float64(skipped)
 	}
 	var all []float64
 	for _, vals := range sc.NEES {
@@ -150,6 +209,11 @@ func (s *settings) scoreJob(j *job) {
 		j.out.Checks = append(j.out.Checks, result.Check{Name: "metrics", Status: result.Error,
 			Message: fmt.Sprintf("the tracker's metrics could not be computed: %v", j.score.err)})
 		j.score = nil
+		return
+	}
+	if n := j.score.skipped; n > 0 {
+		j.out.Checks = append(j.out.Checks, result.Check{Name: "metrics", Status: result.Pass,
+			Message: fmt.Sprintf("%d matched track estimate(s) with a covariance that is not positive definite were left out of the NEES (first: %s); GOSPA and the other metrics are complete", n, j.score.firstSkip)})
 	}
 }
 
