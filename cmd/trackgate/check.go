@@ -134,21 +134,6 @@ func (f *commonFlags) options(scenarios []string) (runner.Options, error) {
 	return o, nil
 }
 
-// parseWithArgs parses flags that may come before, between or after the
-// positional arguments.
-func parseWithArgs(fs *flag.FlagSet, args []string) (pos []string, code int, ok bool) {
-	for {
-		if code, ok := parseFlags(fs, args); !ok {
-			return nil, code, false
-		}
-		if fs.NArg() == 0 {
-			return pos, 0, true
-		}
-		pos = append(pos, fs.Arg(0))
-		args = fs.Args()[1:]
-	}
-}
-
 // interruptible returns a context cancelled by SIGINT or SIGTERM, so that
 // the trackers are ended cleanly.
 func interruptible() (context.Context, context.CancelFunc) {

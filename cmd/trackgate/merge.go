@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"io"
 
@@ -21,30 +22,31 @@ func init() {
 
 // runMerge reads shard results, merges them with result.Merge, summarises
 // and gates every scenario whose runs are now all present with
-// runner.Judge (the gates of the project file, which should be the one the
-// shards ran with), and writes the merged result atomically. Any unreadable
-// file or failed merge check exits 2; otherwise the exit code is the merged
-// result's (statusExit).
+// runner.Judge, and writes the merged result atomically. The gates judged
+// are the ones the shards recorded (result.Suite.Rules; the shards must
+// agree); a --config given on the command line overrides them, with a
+// note; shards that recorded none (results of an older trackgate) are
+// judged with the gates of the project file, when there is one. Any
+// unreadable file or failed merge check exits 2; otherwise the exit code
+// is the merged result's (runner.ExitCode).
 func runMerge(args []string, stdout, stderr io.Writer) int {
 	c := commands["merge"]
 	fs := newFlags(c, stderr)
 	out := fs.String("o", "", "write the merged result to this file (replaced atomically); required")
-	configFile := fs.String("config", config.FileName, "the project file whose gates are judged on the merged runs; a missing file means no gates")
+	configFile := fs.String("config", config.FileName, "a project file whose gates replace the ones the shards recorded; without it the recorded gates are judged (a shard result that records none: this file's, if it exists)")
 	verify := fs.Bool("verify-split", false, "also check that every run sits in the shard that trackgate's split (harness/shard) assigns it")
-	var files []string
-	for {
-		if code, ok := parseFlags(fs, args); !ok {
-			return code
-		}
-		if fs.NArg() == 0 {
-			break
-		}
-		files = append(files, fs.Arg(0))
-		args = fs.Args()[1:]
+	files, code, ok := parseWithArgs(fs, args)
+	if !ok {
+		return code
 	}
+	configGiven := false
+	fs.Visit(func(f *flag.Flag) { configGiven = configGiven || f.Name == "config" })
 	fail := func(format string, a ...any) int {
 		fmt.Fprintf(stderr, "trackgate merge: "+format+"\n", a...)
 		return exitUsage
+	}
+	note := func(format string, a ...any) {
+		fmt.Fprintf(stderr, "trackgate merge: note: "+format+"\n", a...)
 	}
 	if *out == "" {
 		fs.Usage()
@@ -67,20 +69,43 @@ func runMerge(args []string, stdout, stderr io.Writer) int {
 			}
 		}
 	}
-	cfg, err := config.Load(*configFile)
-	if err != nil {
-		return fail("--config: %v", err)
-	}
-	if cfg.File == "" {
-		fmt.Fprintf(stderr, "trackgate merge: note: no project file %s; the merged scenarios are judged without gates\n", *configFile)
-	}
 	merged, err := result.Merge(suites...)
 	if err != nil {
 		return fail("%v (files in order: %v)", err, files)
 	}
-	if err := runner.Judge(merged, cfg); err != nil {
-		return fail("%s: %v", *configFile, err)
+	var gates []config.Gate
+	from := "the gates the shards recorded"
+	switch {
+	case configGiven:
+		cfg, err := config.Load(*configFile)
+		if err != nil {
+			return fail("--config: %v", err)
+		}
+		if cfg.File == "" {
+			return fail("--config: %s: no such project file", *configFile)
+		}
+		gates, from = cfg.Gates, *configFile
+		if rec := merged.Rules; rec != nil && !rec.Equal(runner.RulesOf(gates)) {
+			note("--config %s replaces the gates the shards were judged with (%s) by %s", *configFile, rec, runner.RulesOf(gates))
+		}
+	case merged.Rules != nil:
+		gates = runner.GatesOf(merged.Rules)
+	default:
+		cfg, err := config.Load(*configFile)
+		if err != nil {
+			return fail("--config: %v", err)
+		}
+		if cfg.File == "" {
+			note("the shards recorded no gates and there is no project file %s; the merged scenarios are judged without gates", *configFile)
+		} else {
+			note("the shards recorded no gates; judging the gates of %s", *configFile)
+		}
+		gates, from = cfg.Gates, *configFile
 	}
+	if err := runner.Judge(merged, config.Config{Gates: gates}); err != nil {
+		return fail("%s: %v", from, err)
+	}
+	merged.Rules = runner.RulesOf(gates)
 	if err := result.Write(*out, merged); err != nil {
 		return fail("-o: %v", err)
 	}
@@ -88,11 +113,11 @@ func runMerge(args []string, stdout, stderr io.Writer) int {
 	for _, sc := range merged.Scenarios {
 		runs += len(sc.Runs)
 	}
-	fmt.Fprintf(stderr, "trackgate merge: %d results, %d scenarios, %d runs, status %s -> %s\n", len(files), len(merged.Scenarios), runs, merged.Status, *out)
+	fmt.Fprintf(stderr, "trackgate merge: %d results, %d scenarios, %d runs, %d gates, status %s -> %s\n", len(files), len(merged.Scenarios), runs, len(gates), merged.Status, *out)
 	for _, n := range merged.Notes {
-		fmt.Fprintf(stderr, "trackgate merge: note: %s\n", n)
+		note("%s", n)
 	}
-	return statusExit(merged.Status)
+	return runner.ExitCode(merged.Status)
 }
 
 // verifySplit checks that every run of s belongs to s's shard under

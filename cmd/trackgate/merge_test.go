@@ -45,11 +45,11 @@ func TestMergeCommand(t *testing.T) {
 		t.Fatal(err)
 	}
 	opts := []cmp.Option{cmpopts.EquateNaNs(), cmpopts.EquateEmpty(),
-		cmpopts.IgnoreFields(result.Scenario{}, "Metrics", "Gates"), cmpopts.IgnoreFields(result.Suite{}, "Notes")}
+		cmpopts.IgnoreFields(result.Scenario{}, "Metrics", "Gates"), cmpopts.IgnoreFields(result.Suite{}, "Notes", "Rules")}
 	if d := cmp.Diff(full, got, opts...); d != "" {
 		t.Errorf("merged (-unsharded +merged):\n%s", d)
 	}
-	if !strings.Contains(stderr.String(), "3 results, 4 scenarios, 10 runs, status fault") {
+	if !strings.Contains(stderr.String(), "3 results, 4 scenarios, 10 runs, 0 gates, status fault") {
 		t.Errorf("stderr = %q", stderr.String())
 	}
 }
@@ -70,7 +70,7 @@ func TestMergeCommandErrors(t *testing.T) {
 		args []string
 		want string
 	}{
-		{"gap", []string{"merge", "-o", out, files[0], files[2]}, "shards missing: index 1 of 3"},
+		{"gap", []string{"merge", "-o", out, files[0], files[2]}, "shards missing: result 1 (shard 0/3) says there are 3 shards, 2 results given"},
 		{"overlap", []string{"merge", "-o", out, files[0], files[1], files[1], files[2]}, "shard 1/3 given twice"},
 		{"no output", append([]string{"merge"}, files...), "-o: the merged result file is required"},
 		{"no input", []string{"merge", "-o", out}, "expected at least one shard result file"},

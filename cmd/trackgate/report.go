@@ -8,6 +8,7 @@ import (
 
 	"trackgate/harness/report"
 	"trackgate/harness/result"
+	"trackgate/harness/runner"
 )
 
 func init() {
@@ -24,7 +25,7 @@ var reportFormats = []string{"terminal", "json", "junit", "markdown", "html"}
 
 // runReport reads a result file and renders it. Flags may come before or
 // after the file. A bad flag or an unreadable result exits 2; otherwise
-// the exit code is the result's (statusExit).
+// the exit code is the result's (runner.ExitCode).
 func runReport(args []string, stdout, stderr io.Writer) int {
 	c := commands["report"]
 	fs := newFlags(c, stderr)
@@ -32,16 +33,9 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 	out := fs.String("o", "", "write to this file (replaced atomically) instead of standard output")
 	colour := fs.String("colour", "auto", "terminal colour: auto (when standard output is a terminal and NO_COLOR is unset), always or never")
 	limit := fs.Int("limit", report.DefaultMarkdownLimit, "markdown: the most bytes to write; whole sections are dropped to fit")
-	var files []string
-	for {
-		if code, ok := parseFlags(fs, args); !ok {
-			return code
-		}
-		if fs.NArg() == 0 {
-			break
-		}
-		files = append(files, fs.Arg(0))
-		args = fs.Args()[1:]
+	files, code, ok := parseWithArgs(fs, args)
+	if !ok {
+		return code
 	}
 	fail := func(format string, a ...any) int {
 		fmt.Fprintf(stderr, "trackgate report: "+format+"\n", a...)
@@ -94,7 +88,7 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 	} else if err := result.WriteFile(*out, buf.Bytes()); err != nil {
 		return fail("-o: %v", err)
 	}
-	return statusExit(suite.Status)
+	return runner.ExitCode(suite.Status)
 }
 
 // colourWanted reports whether terminal colour suits w: w is a terminal
@@ -110,18 +104,4 @@ func colourWanted(w io.Writer, getenv func(string) string) bool {
 	}
 	fi, err := f.Stat()
 	return err == nil && fi.Mode()&os.ModeCharDevice != 0
-}
-
-// statusExit maps a suite status to the shared exit codes: pass, tie and
-// skip 0; fail 1; fault 3; error (trackgate could not run a check) 2.
-func statusExit(s result.Status) int {
-	switch s {
-	case result.Pass, result.Tie, result.Skip:
-		return exitPass
-	case result.Fail:
-		return exitFail
-	case result.Faulted:
-		return exitTracker
-	}
-	return exitUsage
 }

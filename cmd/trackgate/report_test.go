@@ -13,6 +13,7 @@ import (
 
 	"trackgate/harness/result"
 	"trackgate/harness/result/sample"
+	"trackgate/harness/runner"
 )
 
 // writeSample writes the sample suite (status fault) to a temporary file.
@@ -142,11 +143,18 @@ func TestColourWanted(t *testing.T) {
 	}
 }
 
-func TestStatusExit(t *testing.T) {
-	want := map[result.Status]int{result.Pass: 0, result.Tie: 0, result.Skip: 0, result.Fail: 1, result.Faulted: 3, result.Error: 2, "odd": 2}
+// TestExitCodes checks the exit codes report and merge take from a
+// result's status: one mapping (runner.ExitCode) for every command, and a
+// tracker fault beside an error exits 3.
+func TestExitCodes(t *testing.T) {
+	want := map[result.Status]int{result.Pass: exitPass, result.Tie: exitPass, result.Skip: exitPass,
+		result.Fail: exitFail, result.Faulted: exitTracker, result.Error: exitUsage, "odd": exitUsage}
 	for s, code := range want {
-		if got := statusExit(s); got != code {
-			t.Errorf("statusExit(%q) = %d, want %d", s, got, code)
+		if got := runner.ExitCode(s); got != code {
+			t.Errorf("runner.ExitCode(%q) = %d, want %d", s, got, code)
 		}
+	}
+	if got := runner.ExitCode(result.Worst(result.Error, result.Faulted)); got != exitTracker {
+		t.Errorf("a fault beside an error exits %d, want %d", got, exitTracker)
 	}
 }

@@ -28,16 +28,9 @@ func runSimulate(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags(c, stderr)
 	runIdx := fs.Int("run", 0, "the Monte Carlo run to simulate, from 0 to the scenario's runs−1")
 	outPath := fs.String("o", "", "write to this file (replaced atomically) instead of stdout")
-	var files []string
-	for {
-		if code, ok := parseFlags(fs, args); !ok {
-			return code
-		}
-		if fs.NArg() == 0 {
-			break
-		}
-		files = append(files, fs.Arg(0))
-		args = fs.Args()[1:]
+	files, code, ok := parseWithArgs(fs, args)
+	if !ok {
+		return code
 	}
 	fail := func(format string, a ...any) int {
 		fmt.Fprintf(stderr, "trackgate simulate: "+format+"\n", a...)

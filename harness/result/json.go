@@ -65,7 +65,11 @@ func Unmarshal(name string, data []byte) (*Suite, error) {
 		return nil, fmt.Errorf("%s: version: written by result version %d; this trackgate reads version %d", name, v, Version)
 	}
 	s := new(Suite)
-	if err := decodeValue(reflect.ValueOf(s).Elem(), tree, ""); err != nil {
+	err = decodeValue(reflect.ValueOf(s).Elem(), tree, "")
+	if err == nil {
+		err = validate(s)
+	}
+	if err != nil {
 		var fe *fieldError
 		if errors.As(err, &fe) {
 			if line, col, ok := locate(data, fe.path); ok {
@@ -75,6 +79,89 @@ func Unmarshal(name string, data []byte) (*Suite, error) {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	return s, nil
+}
+
+// Limits on what a result file may hold, checked as it is read (validate).
+const (
+	// MaxRunsPlanned bounds a scenario's runs_planned: the most runs
+	// trackgate checks of one scenario (runner.MaxRuns).
+	MaxRunsPlanned = 100000
+	// MaxStateDim bounds a scenario's state_dim and meas_dim.
+	MaxStateDim = 64
+)
+
+// validate checks what the types cannot say about a decoded suite, so that
+// what reads it (Merge, the runner's Judge, the reports) may rely on it:
+// a shard with 0 ≤ index < total; per scenario, dimensions
+// between 1 and MaxStateDim when it has runs (0 is left for a scenario
+// that did not load), position components inside the state, runs_planned
+// between 0 and MaxRunsPlanned, run indices ≥ 0 and below runs_planned
+// when it is known; well-formed gate rules. Errors are fieldErrors, so
+// that Unmarshal names the line and column.
+func validate(s *Suite) error {
+	if sh := s.Shard; sh != nil {
+		if sh.Total < 1 {
+			return fieldErr("shard.total", "expected at least 1, got %d", sh.Total)
+		}
+		if sh.Index < 0 || sh.Index >= sh.Total {
+			return fieldErr("shard.index", "expected 0 to %d (total−1), got %d", sh.Total-1, sh.Index)
+		}
+	}
+	for i, sc := range s.Scenarios {
+		p := fmt.Sprintf("scenarios[%d]", i)
+		lo := 0
+		if len(sc.Runs) > 0 {
+			lo = 1
+		}
+		if sc.StateDim < lo || sc.StateDim > MaxStateDim {
+			return fieldErr(p+".state_dim", "expected %d to %d, got %d", lo, MaxStateDim, sc.StateDim)
+		}
+		if sc.MeasDim < lo || sc.MeasDim > MaxStateDim {
+			return fieldErr(p+".meas_dim", "expected %d to %d, got %d", lo, MaxStateDim, sc.MeasDim)
+		}
+		for k, c := range sc.Position {
+			if c < 0 || c >= sc.StateDim {
+				return fieldErr(fmt.Sprintf("%s.position[%d]", p, k), "expected a state component 0 to %d, got %d", sc.StateDim-1, c)
+			}
+		}
+		if sc.RunsPlanned < 0 || sc.RunsPlanned > MaxRunsPlanned {
+			return fieldErr(p+".runs_planned", "expected 0 (unknown) to %d, got %d", MaxRunsPlanned, sc.RunsPlanned)
+		}
+		for k, r := range sc.Runs {
+			rp := fmt.Sprintf("%s.runs[%d]", p, k)
+			if r.Index < 0 || (sc.RunsPlanned > 0 && r.Index >= sc.RunsPlanned) || r.Index >= MaxRunsPlanned {
+				last := MaxRunsPlanned - 1
+				if sc.RunsPlanned > 0 {
+					last = sc.RunsPlanned - 1
+				}
+				return fieldErr(rp+".index", "expected a run index from 0 to %d, got %d", last, r.Index)
+			}
+		}
+	}
+	if s.Rules != nil {
+		for i, g := range s.Rules.Gates {
+			p := fmt.Sprintf("rules.gates[%d]", i)
+			switch {
+			case g.Metric == "":
+				return fieldErr(p+".metric", "expected a metric name, got an empty string")
+			case g.Worse != "higher" && g.Worse != "lower":
+				return fieldErr(p+".worse", `expected "higher" or "lower", got %q`, g.Worse)
+			case g.Limit == nil && g.Paired == nil:
+				return fieldErr(p, `expected "limit", "paired" or both`)
+			case g.Limit != nil && (math.IsNaN(*g.Limit) || math.IsInf(*g.Limit, 0)):
+				return fieldErr(p+".limit", "expected a finite limit, got %g", *g.Limit)
+			}
+			if pr := g.Paired; pr != nil {
+				if !(pr.Confidence > 0 && pr.Confidence < 1) {
+					return fieldErr(p+".paired.confidence", "expected a confidence level in (0, 1), got %g", pr.Confidence)
+				}
+				if !(pr.MinEffect >= 0) || math.IsInf(pr.MinEffect, 0) {
+					return fieldErr(p+".paired.min_effect", "expected a finite effect size ≥ 0, got %g", pr.MinEffect)
+				}
+			}
+		}
+	}
+	return nil
 }
 
 // fieldError is a member of the wrong type or value, by its path.

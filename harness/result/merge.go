@@ -12,8 +12,9 @@ import (
 // Merge combines the results of the shards of one suite into the result the
 // unsharded run would have given.
 //
-// Every shard must have the same layout version, tool, platform, tracker
-// and comparison, and carry a Shard with the same Total; together the shards
+// Every shard must have the same layout version, tool, platform, tracker,
+// comparison and recorded gate rules (Suite.Rules, which the merged suite
+// keeps), and carry a Shard with the same Total; together the shards
 // must cover indices 0..Total-1 exactly once. A suite without Shard counts as
 // shard 0 of 1. A scenario may appear in several shards (each holding some
 // of its runs); its name, file, hash, dimensions and RunsPlanned must agree.
@@ -41,7 +42,7 @@ import (
 // part of the runs cannot be combined: they are dropped, and a note in
 // Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
 // and gates again from the runs' own values (runner.Judge), which gives the
-// unsharded result.
+// unsharded result, with the gate rules the shards recorded.
 //
 // Merge does not modify its arguments; the merged suite shares runs'
 // slices (checks, traces) with them. Errors name the shard (by its
@@ -59,6 +60,10 @@ func Merge(suites ...*Suite) (*Suite, error) {
 	total := shardOf(first).Total
 	if total < 1 {
 		return nil, fmt.Errorf("merge: %s: shard total must be at least 1", describe(0, first))
+	}
+	if total > len(suites) {
+		// Checked before anything is sized by total.
+		return nil, fmt.Errorf("merge: shards missing: %s says there are %d shards, %d results given", describe(0, first), total, len(suites))
 	}
 	seen := make([]int, total) // argument position+1 per shard index
 	var errs []string
@@ -78,6 +83,8 @@ func Merge(suites ...*Suite) (*Suite, error) {
 				first.Tracker.Name, first.Tracker.Version, strings.Join(first.Tracker.Command, " ")))
 		case s.Against != first.Against:
 			errs = append(errs, fmt.Sprintf("%s: compared against %q, the first result against %q", who, s.Against, first.Against))
+		case !s.Rules.Equal(first.Rules):
+			errs = append(errs, fmt.Sprintf("%s: judged with the gates %s, the first result with %s; all shards must run with the same gates", who, s.Rules, first.Rules))
 		}
 		if sh.Total != total {
 			errs = append(errs, fmt.Sprintf("%s: shard total %d, the first result says %d", who, sh.Total, total))
@@ -120,6 +127,7 @@ func Merge(suites ...*Suite) (*Suite, error) {
 		},
 		Against: first.Against,
 		Status:  Pass,
+		Rules:   cloneRules(first.Rules),
 	}
 	order, err := scenarioOrder(suites)
 	if err != nil {
@@ -148,6 +156,25 @@ func Merge(suites ...*Suite) (*Suite, error) {
 		return nil, mergeError(errs)
 	}
 	return out, nil
+}
+
+func cloneRules(r *Rules) *Rules {
+	if r == nil {
+		return nil
+	}
+	c := &Rules{Gates: make([]GateRule, len(r.Gates))}
+	for i, g := range r.Gates {
+		c.Gates[i] = g
+		if g.Limit != nil {
+			l := *g.Limit
+			c.Gates[i].Limit = &l
+		}
+		if g.Paired != nil {
+			p := *g.Paired
+			c.Gates[i].Paired = &p
+		}
+	}
+	return c
 }
 
 func mergeError(errs []string) error {
@@ -258,14 +285,25 @@ func mergeScenario(name string, suites []*Suite) (Scenario, []string, []string) 
 	}
 	sort.SliceStable(out.Runs, func(i, j int) bool { return out.Runs[i].Index < out.Runs[j].Index })
 	if out.RunsPlanned > 0 {
+		// Name the first few gaps and count the rest, without a list as
+		// long as the runs planned.
 		var gaps []string
+		more := 0
 		for k := 0; k < out.RunsPlanned; k++ {
 			if _, ok := from[k]; !ok {
-				gaps = append(gaps, fmt.Sprint(k))
+				if len(gaps) < 8 {
+					gaps = append(gaps, fmt.Sprint(k))
+				} else {
+					more++
+				}
 			}
 		}
 		if len(gaps) > 0 {
-			errs = append(errs, fmt.Sprintf("scenario %q: run %s of %d planned in no shard", name, abbreviate(gaps), out.RunsPlanned))
+			list := strings.Join(gaps, ", ")
+			if more > 0 {
+				list += fmt.Sprintf(" and %d more", more)
+			}
+			errs = append(errs, fmt.Sprintf("scenario %q: run %s of %d planned in no shard", name, list, out.RunsPlanned))
 		}
 		for _, r := range out.Runs {
 			if r.Index < 0 || r.Index >= out.RunsPlanned {
@@ -330,13 +368,6 @@ func short(h string) string {
 		return h[:12]
 	}
 	return h
-}
-
-func abbreviate(xs []string) string {
-	if len(xs) > 8 {
-		return strings.Join(xs[:8], ", ") + fmt.Sprintf(" and %d more", len(xs)-8)
-	}
-	return strings.Join(xs, ", ")
 }
 
 func cloneMetrics(m *Metrics) *Metrics {

@@ -1,5 +1,10 @@
 package result
 
+import (
+	"strconv"
+	"strings"
+)
+
 // Version is the version of the result JSON layout. It changes whenever a
 // field is renamed or its meaning changes; adding a field does not change it.
 const Version = 1
@@ -14,14 +19,19 @@ const (
 	// Tie marks a changed association where the reference's best hypothesis
 	// was not clear (margin under the ambiguity threshold): reported, not a
 	// failure.
-	Tie     Status = "tie"
-	Skip    Status = "skip"  // not run (no golden to compare with, filtered out)
-	Fail    Status = "fail"  // a regression
-	Faulted Status = "fault" // the tracker itself faulted
-	Error   Status = "error" // trackgate could not run the check (bad scenario, stale golden...)
+	Tie   Status = "tie"
+	Skip  Status = "skip"  // not run (no golden to compare with, filtered out)
+	Fail  Status = "fail"  // a regression
+	Error Status = "error" // trackgate could not run the check (bad scenario, stale golden...)
+	// Faulted says the tracker itself faulted (crashed, hung, sent what the
+	// protocol does not allow). It ranks above Error: a check that could
+	// not be made because of the fault, or beside it, must not hide that
+	// the tracker failed.
+	Faulted Status = "fault"
 )
 
-// Rank orders statuses by severity: Pass < Tie < Skip < Fail < Faulted < Error.
+// Rank orders statuses by severity: Pass < Tie < Skip < Fail < Error <
+// Faulted. An unknown or missing status ranks with Error.
 func (s Status) Rank() int {
 	switch s {
 	case Pass:
@@ -32,12 +42,12 @@ func (s Status) Rank() int {
 		return 2
 	case Fail:
 		return 3
-	case Faulted:
-		return 4
 	case Error:
+		return 4
+	case Faulted:
 		return 5
 	}
-	return 5
+	return 4
 }
 
 // Worst returns the more severe of a and b.
@@ -66,6 +76,84 @@ type Suite struct {
 	// Notes are remarks about the suite as a whole that a reader must see,
 	// such as summaries Merge could not carry over from the shards.
 	Notes []string `json:"notes,omitempty"`
+	// Rules are the gate rules the scenarios were judged with (the gates
+	// of the project file), recorded so that the merge of shard results
+	// is judged with the same rules. Nil in a result that does not record
+	// them (written before they were recorded); an empty list when there
+	// were no gates.
+	Rules *Rules `json:"rules,omitempty"`
+}
+
+// Rules are the gate rules a suite was judged with.
+type Rules struct {
+	// Gates are the gate rules in the project file's order.
+	Gates []GateRule `json:"gates"`
+}
+
+// GateRule is one gate rule of the project file: the metric, which way is
+// worse, and an absolute limit, a paired comparison with a baseline, or
+// both.
+type GateRule struct {
+	Metric string `json:"metric"`
+	// Worse is "higher" or "lower": the direction in which the metric
+	// gets worse.
+	Worse string `json:"worse"`
+	// Limit, if set, is the absolute limit on the mean of the runs' values.
+	Limit *float64 `json:"limit,omitempty"`
+	// Paired, if set, is the paired comparison with the baseline.
+	Paired *PairedRule `json:"paired,omitempty"`
+}
+
+// PairedRule is the paired comparison of a GateRule.
+type PairedRule struct {
+	// Confidence is the one-sided confidence level in (0, 1).
+	Confidence float64 `json:"confidence"`
+	// MinEffect is the smallest mean difference that can fail the gate.
+	MinEffect float64 `json:"min_effect"`
+}
+
+// Equal reports whether r and o are the same rules; two nil Rules are
+// equal, a nil and a non-nil one are not.
+func (r *Rules) Equal(o *Rules) bool {
+	if r == nil || o == nil {
+		return r == nil && o == nil
+	}
+	if len(r.Gates) != len(o.Gates) {
+		return false
+	}
+	for i, a := range r.Gates {
+		b := o.Gates[i]
+		if a.Metric != b.Metric || a.Worse != b.Worse ||
+			(a.Limit == nil) != (b.Limit == nil) || (a.Limit != nil && *a.Limit != *b.Limit) ||
+			(a.Paired == nil) != (b.Paired == nil) || (a.Paired != nil && *a.Paired != *b.Paired) {
+			return false
+		}
+	}
+	return true
+}
+
+// String describes the rules in one line, for messages: "none recorded",
+// "no gates" or the gates separated by semicolons.
+func (r *Rules) String() string {
+	if r == nil {
+		return "none recorded"
+	}
+	if len(r.Gates) == 0 {
+		return "no gates"
+	}
+	parts := make([]string, len(r.Gates))
+	for i, g := range r.Gates {
+		s := g.Metric + " (worse " + g.Worse + ")"
+		if g.Limit != nil {
+			s += " limit " + strconv.FormatFloat(*g.Limit, 'g', -1, 64)
+		}
+		if g.Paired != nil {
+			s += " paired confidence " + strconv.FormatFloat(g.Paired.Confidence, 'g', -1, 64) +
+				" min effect " + strconv.FormatFloat(g.Paired.MinEffect, 'g', -1, 64)
+		}
+		parts[i] = s
+	}
+	return strings.Join(parts, "; ")
 }
 
 // Platform records where the result was produced; floating-point results can

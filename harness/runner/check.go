@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"trackgate/harness/compare"
+	"trackgate/harness/config"
 	"trackgate/harness/driver"
 	"trackgate/harness/golden"
 	"trackgate/harness/mot"
@@ -85,13 +86,20 @@ func CheckTimed(ctx context.Context, o Options) (*result.Suite, Timing, error) {
 	}
 	// Runs go through the pipeline a batch at a time, and a judged run
 	// keeps only its result, so memory stays bounded by the batch
-	// whatever the number of runs.
+	// whatever the number of runs. A batch never splits a tracker chunk
+	// (see chunkOf), so the runs a tracker process serves do not depend on
+	// the batch size.
 	batch := max(64, 16*s.workers)
 	if batchRuns > 0 {
 		batch = batchRuns
 	}
-	for lo := 0; lo < len(jobs); lo += batch {
-		part := jobs[lo:min(len(jobs), lo+batch)]
+	for lo := 0; lo < len(jobs); {
+		hi := min(len(jobs), lo+batch)
+		for hi < len(jobs) && chunkOf(jobs[hi]) == chunkOf(jobs[hi-1]) {
+			hi++
+		}
+		part := jobs[lo:hi]
+		lo = hi
 		s.parallel(len(part), func(i int) { s.prepareJob(part[i]) })
 		t0 := time.Now()
 		s.drive(ctx, part)
@@ -171,19 +179,45 @@ func (j *job) release() {
 	j.names, j.score, j.refSc, j.blessed, j.ties = nil, nil, nil, nil, nil
 }
 
+// RunsPerProcess is the number of consecutive runs of a scenario that one
+// tracker process serves when the tracker says it can serve several
+// (many_runs): runs r with the same r / RunsPerProcess form a chunk, each
+// chunk is served by a tracker process of its own, in run order, and the
+// workers (-j) take whole chunks. Which runs share a process therefore
+// depends neither on the number of workers nor on progress reporting, so a
+// tracker that carries state from one run to the next is judged the same
+// way every time. (A tracker that faults is started again for the rest of
+// its chunk.) With runs dealt to shards one by one, a shard's chunk holds
+// only the runs of that shard.
+const RunsPerProcess = 16
+
+// chunk identifies the tracker process that serves a job.
+type chunk struct {
+	sc *scen
+	n  int
+}
+
+// chunkOf returns j's chunk (see RunsPerProcess).
+func chunkOf(j *job) chunk { return chunk{j.sc, j.index / RunsPerProcess} }
+
 // drive runs the tracker over every job whose reference succeeded.
 func (s *settings) drive(ctx context.Context, jobs []*job) {
 	var djobs []driver.Job
 	var idx []int
+	var bounds []int // start of each chunk in djobs, then len(djobs)
 	for i, j := range jobs {
 		if j.refErr == nil {
+			if len(idx) == 0 || chunkOf(jobs[idx[len(idx)-1]]) != chunkOf(j) {
+				bounds = append(bounds, len(djobs))
+			}
 			djobs = append(djobs, driver.JobFor(j.sc.spec, j.run))
 			idx = append(idx, i)
 		}
 	}
+	bounds = append(bounds, len(djobs))
 	s.tally.add(len(jobs) - len(djobs)) // runs the reference failed on are done
 	t0 := time.Now()
-	res := s.runTracker(ctx, djobs)
+	res := s.runTracker(ctx, djobs, bounds)
 	per := 0.0
 	if len(djobs) > 0 {
 		per = time.Since(t0).Seconds() * float64(s.workers) / float64(len(djobs))
@@ -196,35 +230,27 @@ func (s *settings) drive(ctx context.Context, jobs []*job) {
 }
 
 // runTracker runs the tracker under test over djobs: in process, or
-// through the driver, all at once or, to report progress, a few runs at a
-// time per worker.
-func (s *settings) runTracker(ctx context.Context, djobs []driver.Job) []driver.Result {
+// through the driver one chunk at a time, djobs[bounds[c]:bounds[c+1]]
+// being chunk c, each chunk served by a tracker process of its own.
+func (s *settings) runTracker(ctx context.Context, djobs []driver.Job, bounds []int) []driver.Result {
 	total := len(djobs)
 	if s.Progress != nil && s.tally == nil {
 		s.tally = newTally(s.Progress, total)
 	}
 	p := s.tally
+	out := make([]driver.Result, total)
 	if s.Local != nil {
-		if p == nil {
-			return s.driveLocal(ctx, djobs)
-		}
-		out := make([]driver.Result, total)
 		s.parallel(total, func(i int) {
 			out[i] = s.runLocal(ctx, djobs[i])
 			p.add(1)
 		})
 		return out
 	}
-	if p == nil || total == 0 {
-		return driver.RunMany(ctx, s.drv, djobs, s.workers)
+	if len(bounds) < 2 {
+		return out
 	}
-	// Chunks of about a fiftieth of the suite's runs per worker, at most
-	// 16 runs, each chunk served by one tracker start.
-	size := max(1, min(16, p.total/(50*max(1, s.workers))))
-	chunks := (total + size - 1) / size
-	out := make([]driver.Result, total)
-	s.parallel(chunks, func(c int) {
-		lo, hi := c*size, min(total, (c+1)*size)
+	s.parallel(len(bounds)-1, func(c int) {
+		lo, hi := bounds[c], bounds[c+1]
 		copy(out[lo:hi], driver.RunMany(ctx, s.drv, djobs[lo:hi], 1))
 		p.add(hi - lo)
 	})
@@ -370,6 +396,7 @@ func (s *settings) assemble(scens []*scen) *result.Suite {
 		Against:  string(s.against),
 		Shard:    s.Shard.Result(),
 		Status:   result.Pass,
+		Rules:    RulesOf(s.cfg.Gates),
 	}
 	if suite.Tool == "" {
 		suite.Tool = "trackgate " + golden.ModuleVersion()
@@ -417,6 +444,48 @@ func (s *settings) assemble(scens []*scen) *result.Suite {
 	return suite
 }
 
+// RulesOf records gates as the result's gate rules (never nil: no gates
+// give an empty list), so that a merge of shard results judges them
+// again with the same rules (GatesOf).
+func RulesOf(gates []config.Gate) *result.Rules {
+	r := &result.Rules{Gates: []result.GateRule{}}
+	for _, g := range gates {
+		gr := result.GateRule{Metric: g.Metric, Worse: "higher"}
+		if g.LowerIsWorse {
+			gr.Worse = "lower"
+		}
+		if g.Limit != nil {
+			l := *g.Limit
+			gr.Limit = &l
+		}
+		if g.Paired != nil {
+			gr.Paired = &result.PairedRule{Confidence: g.Paired.Confidence, MinEffect: g.Paired.MinEffect}
+		}
+		r.Gates = append(r.Gates, gr)
+	}
+	return r
+}
+
+// GatesOf returns the gates recorded as r (RulesOf); nil for nil r.
+func GatesOf(r *result.Rules) []config.Gate {
+	if r == nil {
+		return nil
+	}
+	var out []config.Gate
+	for _, gr := range r.Gates {
+		g := config.Gate{Metric: gr.Metric, LowerIsWorse: gr.Worse == "lower"}
+		if gr.Limit != nil {
+			l := *gr.Limit
+			g.Limit = &l
+		}
+		if gr.Paired != nil {
+			g.Paired = &config.Paired{Confidence: gr.Paired.Confidence, MinEffect: gr.Paired.MinEffect}
+		}
+		out = append(out, g)
+	}
+	return out
+}
+
 // platform describes the running binary.
 func platform() result.Platform {
 	p := golden.ThisPlatform()
@@ -450,9 +519,14 @@ func objectsOf(spec *scenario.Spec) []mot.Object {
 	return objs
 }
 
-// ExitCode maps a suite status to trackgate's exit codes: pass, tie and skip
-// 0; fail (a regression) 1; error (a bad scenario, a stale golden, a harness
-// failure) 2; fault (the tracker itself failed) 3.
+// ExitCode maps a suite status to trackgate's exit codes, for check, merge
+// and report alike: pass, tie and skip 0; fail (a regression) 1; error (a
+// scenario that does not load, a stale golden, a check trackgate could not
+// make) 2; fault (the tracker itself faulted) 3. A fault ranks above an
+// error (result.Status.Rank), so a suite where the tracker faulted on any
+// run exits 3 even when some check also ended in an error. Bad usage and a
+// bad project file stop trackgate before any run and exit 2 without a
+// suite.
 func ExitCode(s result.Status) int {
 	switch s {
 	case result.Pass, result.Tie, result.Skip:

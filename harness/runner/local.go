@@ -38,13 +38,6 @@ type Local struct {
 	Begin func(protocol.Start) (protocol.StepFunc, error)
 }
 
-// driveLocal runs every job on the in-process tracker.
-func (s *settings) driveLocal(ctx context.Context, jobs []driver.Job) []driver.Result {
-	out := make([]driver.Result, len(jobs))
-	s.parallel(len(jobs), func(i int) { out[i] = s.runLocal(ctx, jobs[i]) })
-	return out
-}
-
 // runLocal feeds one job to the in-process tracker.
 func (s *settings) runLocal(ctx context.Context, job driver.Job) (res driver.Result) {
 	ready := s.Local.Ready

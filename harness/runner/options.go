@@ -65,7 +65,9 @@ type Options struct {
 	// means every pair.
 	Shard shard.Spec
 	// Workers is the number of runs handled at once; < 1 means
-	// runtime.NumCPU(). Results do not depend on it.
+	// runtime.NumCPU(). Results do not depend on it: the workers share out
+	// whole chunks of RunsPerProcess runs, each served by a tracker
+	// process of its own.
 	Workers int
 	// Profile, if set, names the tolerance profile used instead of the
 	// project's (per-scenario overrides still apply on top).
@@ -108,9 +110,8 @@ type Options struct {
 	Local *Local
 	// Progress, if set, is called as runs of the tracker finish, with the
 	// number done and the number to do, from one goroutine at a time. It
-	// never affects the result. With a command tracker the runs are then
-	// handed to the driver a few at a time, so that progress can be told,
-	// at the price of a tracker start per few runs.
+	// never affects the result: the runs a tracker process serves are
+	// fixed by RunsPerProcess whether progress is reported or not.
 	Progress func(done, total int)
 }
 
