@@ -7,6 +7,8 @@ import (
 	"sort"
 	"strings"
 
+	"gonum.org/v1/gonum/mat"
+
 	"trackgate/harness/compare"
 	"trackgate/harness/mot"
 	"trackgate/harness/result"
@@ -533,6 +535,11 @@ func tangleNote(objs []string, tangled map[string][]string, stopped map[string]i
 }
 
 // checkReference compares the whole run with the reference's own run.
+//
+// Where the tracker departs from the reference at a tie it is followed
+// rather than dropped: the reference is re-run from that step with the
+// tracker's hypothesis forced in the tied clusters (see branch), and every
+// later step is compared with that branch.
 func (s *settings) checkReference(j *job) result.Check {
 	b := newBuilder("reference", s.maxDiffs)
 	ready := j.res.Tracker
@@ -544,9 +551,29 @@ func (s *settings) checkReference(j *job) result.Check {
 			stoppedOrder = append(stoppedOrder, o)
 		}
 	}
+	tieAt := func(o string, k int) {
+		if _, ok := j.ties[o]; !ok {
+			j.ties[o] = k
+		}
+	}
 	j.ties = map[string]int{}
+	br := newBranch(j, s.K)
 	for k, f := range j.res.Frames {
 		d := &j.ex.Steps[k]
+		if br.on {
+			bd, err := br.next(k)
+			if err != nil {
+				// Back on the reference's own run; what was followed is
+				// no longer compared.
+				b.notes = append(b.notes, fmt.Sprintf("the reference's branch could not be continued at step %d: %v", k, err))
+				br.on, br.prev = false, nil
+				for _, o := range br.objs {
+					stop(o, k)
+				}
+			} else {
+				d = bd
+			}
+		}
 		v := newView(d, f, j.names)
 		for _, od := range d.Objects {
 			if _, ok := v.byObj[od.Object]; !ok {
@@ -561,6 +588,8 @@ func (s *settings) checkReference(j *job) result.Check {
 		// Objects whose cluster holds an object already stopped: their
 		// association no longer has to be the reference's.
 		tangled := entangled(d, f, v, stopped)
+		force := map[string]int{}
+		var followed []string
 		if ready.Association {
 			var changed, loose []string
 			for _, od := range d.Objects {
@@ -581,34 +610,104 @@ func (s *settings) checkReference(j *job) result.Check {
 				div.Message += "; " + tangleNote(loose, tangled, stopped)
 				b.tie(div)
 				for _, o := range loose {
-					if _, ok := j.ties[o]; !ok {
-						j.ties[o] = k
-					}
+					tieAt(o, k)
 					stop(o, k)
 				}
 			}
 			if len(changed) > 0 {
-				for _, o := range judgeChange(b, k, d, f, v, changed, j.sc.tie, "the reference") {
-					if _, ok := j.ties[o]; !ok {
-						j.ties[o] = k
+				tied, clear := splitTied(clusterParts(d, changed), j.sc.tie)
+				// A tied cluster is followed down the tracker's branch
+				// when its choice is a listed hypothesis within the
+				// margin of the cluster's best; otherwise the tie rule
+				// does not apply and the change is a regression.
+				var follow, unfollowable []part
+				for _, p := range tied {
+					if choice, ok := tiedChoice(d, p, trackerAssoc(d, f, v, true), j.sc.tie); ok {
+						follow = append(follow, p)
+						forceCluster(force, choice)
+					} else {
+						unfollowable = append(unfollowable, p)
 					}
+				}
+				if len(clear) > 0 {
+					b.fail(assocDivergence(k, d, f, v, clear, false, true, "the reference"))
+				}
+				if len(unfollowable) > 0 {
+					div := assocDivergence(k, d, f, v, unfollowable, true, true, "the reference")
+					div.Message += fmt.Sprintf("; the cluster's margin is within the tie margin %g, but the tracker's choice is not a hypothesis of the reference's k best within it, so the tie rule does not apply", j.sc.tie)
+					b.fail(div)
 				}
 				for _, o := range changed {
 					stop(o, k)
 				}
+				if len(follow) > 0 {
+					b.tie(assocDivergence(k, d, f, v, follow, true, true, "the reference"))
+					for _, p := range follow {
+						for _, o := range p.objects {
+							tieAt(o, k)
+							followed = append(followed, o)
+						}
+					}
+				}
 			}
 		}
 		if !ready.Association {
-			// The tracker does not say which hypothesis it took: from an
-			// ambiguous step of their cluster on, the objects whose
-			// association differs between its best hypothesis and one
-			// within the threshold are no longer compared.
-			for _, row := range ambiguous(d, j.sc.tie) {
-				o := d.Objects[row].Object
-				stop(o, k)
-				if _, ok := j.ties[o]; !ok {
-					j.ties[o] = k
+			// The tracker does not say which hypothesis it took: in each
+			// ambiguous cluster the branch followed is the hypothesis
+			// within the threshold whose posterior means are nearest the
+			// tracker's (nearestHypothesis).
+			for _, p := range ambiguousParts(d, j.sc.tie) {
+				if !br.ok || p.cluster < 0 {
+					for _, o := range p.objects {
+						stop(o, k)
+						tieAt(o, k)
+					}
+					continue
 				}
+				rank, dist := nearestHypothesis(br.filt, d, p, br.scans[k], f, v, stopped, j.sc.tie)
+				if rank <= 0 {
+					continue
+				}
+				cd := &d.PerCluster[p.cluster]
+				h := cd.Hypotheses[rank]
+				forceCluster(force, assignOf(d, cd.Rows, h.Assoc))
+				var moved []string
+				for a, row := range cd.Rows {
+					if h.Assoc[a] != cd.Hypotheses[0].Assoc[a] {
+						o := d.Objects[row].Object
+						moved = append(moved, o)
+						tieAt(o, k)
+						if _, st := stopped[o]; !st {
+							followed = append(followed, o)
+						}
+					}
+				}
+				pr, m := h.Prob, cd.Margin
+				b.tie(result.Divergence{Step: k, Kind: "association", Objects: moved, Probability: &pr, Margin: &m,
+					Message: fmt.Sprintf("the tracker's estimates of %s are nearest the reference's hypothesis %d of their cluster (Mahalanobis distances² summed: %.4g for it, %.4g for the best), within the tie margin of the best (margin %.4g); the reference follows it from here",
+						strings.Join(moved, ", "), rank+1, dist[rank], dist[0], cd.Margin)})
+			}
+		}
+		if len(force) > 0 && br.ok {
+			bd, err := br.fork(k, d, force)
+			if err != nil {
+				// Not followable after all: the old rule, no longer compared.
+				b.notes = append(b.notes, fmt.Sprintf("the reference could not follow the tracker's branch at step %d: %v", k, err))
+				for _, o := range followed {
+					stop(o, k)
+				}
+			} else {
+				d = bd
+				for _, o := range followed {
+					delete(stopped, o)
+					stoppedOrder = slices.DeleteFunc(stoppedOrder, func(x string) bool { return x == o })
+				}
+				br.forks = append(br.forks, fmt.Sprintf("step %d (%s)", k, strings.Join(followed, ", ")))
+				br.objs = append(br.objs, followed...)
+			}
+		} else if len(followed) > 0 {
+			for _, o := range followed {
+				stop(o, k)
 			}
 		}
 		for _, od := range d.Objects {
@@ -626,29 +725,296 @@ func (s *settings) checkReference(j *job) result.Check {
 				div := estimateDivergence(k, od.Object, r, "estimate differs from the reference's run")
 				div.Message += "; " + tangleNote([]string{od.Object}, tangled, stopped)
 				b.tie(div)
-				if _, ok := j.ties[od.Object]; !ok {
-					j.ties[od.Object] = k
-				}
+				tieAt(od.Object, k)
 				stop(od.Object, k)
 				continue
 			}
-			b.fail(estimateDivergence(k, od.Object, r, "estimate differs from the reference's run"))
+			what := "estimate differs from the reference's run"
+			if br.on {
+				what = "estimate differs from the reference's run down the tracker's branch"
+			}
+			b.fail(estimateDivergence(k, od.Object, r, what))
 			b.diffs(r.Diffs)
 			stop(od.Object, k)
 		}
+	}
+	if len(br.forks) > 0 {
+		b.notes = append(b.notes, "followed down the tracker's branch after a tie it resolved otherwise, at "+strings.Join(br.forks, ", "))
 	}
 	if len(stoppedOrder) > 0 {
 		var parts []string
 		for _, o := range stoppedOrder {
 			parts = append(parts, fmt.Sprintf("%s after step %d", o, stopped[o]))
 		}
-		b.notes = append(b.notes, "not compared after their first tie or divergence: "+strings.Join(parts, ", "))
+		b.notes = append(b.notes, "not compared after their first divergence (or a tie the reference could not follow): "+strings.Join(parts, ", "))
 	}
 	summary := fmt.Sprintf("%d steps compared with the reference's run", len(j.res.Frames))
 	if !ready.Association {
 		summary += "; the tracker does not report associations, so only estimates and track counts were compared"
 	}
 	return b.done(summary)
+}
+
+// branch is the reference's run down the tracker's branch. Where the
+// tracker resolves a tie the other way (a hypothesis other than the
+// reference's best, within the tie margin of it, in a cluster whose
+// margin is within the tie margin) the reference is re-run from that
+// step's predicted states with the tracker's hypothesis forced in the tied
+// clusters (tracker.StepWith), and then continued step by step from its
+// own posteriors (tracker.StepFrom), as its own run would have been had it
+// chosen so. Once the branch's states are again bit for bit the
+// reference run's it rejoins that run, so a branch costs one reference
+// step per step it lasts.
+type branch struct {
+	// ok reports that a branch can be run: the scenario's model and the
+	// run's scans are at hand.
+	ok bool
+	// on reports that the steps from here on are the branch's.
+	on    bool
+	model mot.Model
+	filt  *kalman.Filter
+	scans []mot.Scan
+	ref   []tracker.Detail
+	k     int
+	prev  *tracker.Detail // the branch's step before
+	forks []string        // where the branch was forked, for the check's message
+	objs  []string        // the objects followed down it
+}
+
+func newBranch(j *job, k int) *branch {
+	br := &branch{scans: j.run.Scans, ref: j.ex.Steps, k: k}
+	if j.sc == nil || j.sc.spec == nil || len(j.run.Scans) < len(j.res.Frames) || len(j.ex.Steps) < len(j.res.Frames) {
+		return br
+	}
+	f, err := kalman.New(j.sc.spec.Model)
+	if err != nil {
+		return br
+	}
+	br.ok, br.model, br.filt = true, j.sc.spec.Model, f
+	return br
+}
+
+// fork re-runs step k from the predicted states of d (the step as the
+// reference or the branch had it) with the association force, and makes
+// it the branch's step k.
+func (br *branch) fork(k int, d *tracker.Detail, force map[string]int) (*tracker.Detail, error) {
+	states := make([]tracker.State, len(d.Objects))
+	for i, od := range d.Objects {
+		states[i] = tracker.State{ID: od.Object, Mean: od.PredMean, Cov: od.PredCov, Predicted: true}
+	}
+	nd, err := tracker.StepWith(br.model, states, br.scans[k], br.k, 0, force)
+	if err != nil {
+		return nil, err
+	}
+	br.on, br.prev = true, &nd
+	return &nd, nil
+}
+
+// next returns step k of the branch, continued from its step before: the
+// objects of the reference's step k, each from the branch's posterior (an
+// object new at k from its prior, as in the reference's run), predicted
+// over the gap between the scans. When every such state is bit for bit
+// the reference run's the branch has rejoined it and next returns the
+// reference's own step.
+func (br *branch) next(k int) (*tracker.Detail, error) {
+	ref := &br.ref[k]
+	if k > 0 && sameStates(br.prev, &br.ref[k-1]) {
+		br.on, br.prev = false, nil
+		return ref, nil
+	}
+	at := make(map[string]int, len(br.prev.Objects))
+	for i, od := range br.prev.Objects {
+		at[od.Object] = i
+	}
+	gap := br.scans[k].Step - br.prev.Step
+	states := make([]tracker.State, 0, len(ref.Objects))
+	for _, od := range ref.Objects {
+		i, ok := at[od.Object]
+		if !ok {
+			states = append(states, tracker.State{ID: od.Object, Mean: od.PredMean, Cov: od.PredCov, Predicted: true})
+			continue
+		}
+		po := br.prev.Objects[i]
+		x, p := slices.Clone(po.Mean), slices.Clone(po.Cov.Data)
+		// StepFrom predicts once; the reference predicts once per step
+		// of the gap.
+		for g := 1; g < gap; g++ {
+			br.filt.PredictTo(x, p, x, p)
+		}
+		states = append(states, tracker.State{ID: od.Object, Mean: x, Cov: mot.Mat{Rows: po.Cov.Rows, Cols: po.Cov.Cols, Data: p}})
+	}
+	nd, err := tracker.StepFrom(br.model, states, br.scans[k], br.k, 0)
+	if err != nil {
+		return nil, err
+	}
+	br.prev = &nd
+	return &nd, nil
+}
+
+// sameStates reports whether a and b hold the same objects with the same
+// posteriors, bit for bit.
+func sameStates(a, b *tracker.Detail) bool {
+	if len(a.Objects) != len(b.Objects) {
+		return false
+	}
+	for i, od := range a.Objects {
+		ob := b.Objects[i]
+		if od.Object != ob.Object || !sameBits(od.Mean, ob.Mean) || !sameBits(od.Cov.Data, ob.Cov.Data) {
+			return false
+		}
+	}
+	return true
+}
+
+// tiedChoice returns the association, per object of the clusters of p,
+// of the most probable listed hypothesis that agrees with every
+// association the tracker reported (assoc per row of d; −2 for a row the
+// tracker said nothing about) and whose cost is within the threshold of
+// the best's; false when the reference lists none. Without per-cluster
+// structure (cluster −1) the scan's hypotheses are searched and the whole
+// scan is returned.
+func tiedChoice(d *tracker.Detail, p part, assoc []int, threshold float64) (map[string]int, bool) {
+	agrees := func(rows []int, h []int) bool {
+		for a, row := range rows {
+			if row >= len(assoc) || a >= len(h) || assoc[row] != -2 && h[a] != assoc[row] {
+				return false
+			}
+		}
+		return true
+	}
+	if p.cluster < 0 {
+		if len(d.Hypotheses) == 0 {
+			return nil, false
+		}
+		rows := make([]int, len(d.Objects))
+		for i := range rows {
+			rows[i] = i
+		}
+		for _, h := range d.Hypotheses {
+			if isTie(h.Cost-d.Hypotheses[0].Cost, threshold) && agrees(rows, h.Assoc) {
+				return assignOf(d, rows, h.Assoc), true
+			}
+		}
+		return nil, false
+	}
+	cd := &d.PerCluster[p.cluster]
+	for _, h := range cd.Hypotheses {
+		if isTie(h.Cost-cd.Hypotheses[0].Cost, threshold) && agrees(cd.Rows, h.Assoc) {
+			return assignOf(d, cd.Rows, h.Assoc), true
+		}
+	}
+	return nil, false
+}
+
+// assignOf maps the objects of rows of d to the detections of a
+// hypothesis's association (one entry per row).
+func assignOf(d *tracker.Detail, rows, assoc []int) map[string]int {
+	out := make(map[string]int, len(rows))
+	for a, row := range rows {
+		out[d.Objects[row].Object] = assoc[a]
+	}
+	return out
+}
+
+// forceCluster adds the association of one cluster to force.
+func forceCluster(force map[string]int, choice map[string]int) {
+	for o, det := range choice {
+		force[o] = det
+	}
+}
+
+// ambiguousParts groups the ambiguous rows of d (see ambiguous) by their
+// cluster.
+func ambiguousParts(d *tracker.Detail, threshold float64) []part {
+	rows := ambiguous(d, threshold)
+	if len(rows) == 0 {
+		return nil
+	}
+	objs := make([]string, len(rows))
+	for i, row := range rows {
+		objs[i] = d.Objects[row].Object
+	}
+	return clusterParts(d, objs)
+}
+
+// nearestHypothesis returns the rank, in the cluster of p, of the
+// hypothesis within the threshold of the cluster's best whose posterior
+// means are nearest the tracker's estimates, and the distance of each
+// listed hypothesis (+Inf beyond the threshold). The distance of a
+// hypothesis is the sum over the cluster's objects the tracker has a track
+// for (and that are still compared) of the squared Mahalanobis distance
+// (x̂ − x_h)ᵀ P_h⁻¹ (x̂ − x_h) between the tracker's mean x̂ and the
+// object's posterior N(x_h, P_h) under that hypothesis (the Kalman update
+// of its prediction with the hypothesis's detection, or the prediction on
+// a miss). The best hypothesis wins equal distances, and a lower rank a
+// higher one. It is −1 when the part has no per-cluster record.
+//
+// References:
+//   - P. C. Mahalanobis, "On the generalized distance in statistics",
+//     Proceedings of the National Institute of Sciences of India 2(1):49–55,
+//     1936 (the distance).
+//   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with
+//     Applications to Tracking and Navigation", Wiley, 2001, §5.2 (the
+//     Kalman update; section from memory).
+func nearestHypothesis(filt *kalman.Filter, d *tracker.Detail, p part, scan mot.Scan, f mot.Frame, v view, stopped map[string]int, threshold float64) (int, []float64) {
+	if p.cluster < 0 || p.cluster >= len(d.PerCluster) {
+		return -1, nil
+	}
+	cd := &d.PerCluster[p.cluster]
+	dist := make([]float64, len(cd.Hypotheses))
+	rank := -1
+	for r, h := range cd.Hypotheses {
+		dist[r] = math.Inf(1)
+		if !isTie(h.Cost-cd.Hypotheses[0].Cost, threshold) {
+			continue
+		}
+		sum, used := 0.0, 0
+		for a, row := range cd.Rows {
+			od := d.Objects[row]
+			i, ok := v.byObj[od.Object]
+			if _, st := stopped[od.Object]; !ok || st {
+				continue
+			}
+			mean, cov, err := updateWith(filt, od, h.Assoc[a], scan)
+			if err != nil {
+				sum = math.Inf(1)
+				break
+			}
+			sum += mahalanobis2(f.Tracks[i].Mean, mean, cov)
+			used++
+		}
+		if used == 0 {
+			continue
+		}
+		dist[r] = sum
+		if rank < 0 || sum < dist[rank] {
+			rank = r
+		}
+	}
+	return rank, dist
+}
+
+// mahalanobis2 returns (x − m)ᵀ P⁻¹ (x − m), +Inf when the lengths differ
+// or P is not positive definite.
+func mahalanobis2(x, m []float64, p mot.Mat) float64 {
+	n := len(m)
+	if len(x) != n || p.Rows != n || p.Cols != n || len(p.Data) != n*n {
+		return math.Inf(1)
+	}
+	var ch mat.Cholesky
+	if !ch.Factorize(mat.NewSymDense(n, slices.Clone(p.Data))) {
+		return math.Inf(1)
+	}
+	r := make([]float64, n)
+	for i := range r {
+		r[i] = x[i] - m[i]
+	}
+	rv := mat.NewVecDense(n, r)
+	var y mat.VecDense
+	if err := ch.SolveVecTo(&y, rv); err != nil {
+		return math.Inf(1)
+	}
+	return mat.Dot(rv, &y)
 }
 
 // checkConformance restarts the reference from the tracker's own estimates
