@@ -52,16 +52,35 @@
 //     choice whatever happens in the other clusters. A Detail without
 //     per-cluster records (one built by hand) is judged as one cluster, by the
 //     scan's margin and the probability of the scan's most probable listed
-//     hypothesis that agrees with the tracker. Estimates are compared with the
-//     tolerance profile until the object's first tie or divergence; later
-//     steps of that object are not compared (the message says so), since after
-//     a legitimately different choice the two runs need not agree. For a
-//     tracker that does not report associations, an object stops being
-//     compared at the first step where its cluster's margin is within the
-//     threshold and a hypothesis of the cluster within τ of the best gives it
-//     another detection (without per-cluster records: where the scan's margin
-//     is within the threshold and the scan's two best hypotheses differ for
-//     it). A stopped object's state may rightly differ from the reference's,
+//     hypothesis that agrees with the tracker. A change in a tied cluster
+//     whose choice is not one of the cluster's k best hypotheses within τ of
+//     its best is a regression: the tie rule only covers a choice the
+//     reference itself ranks within τ. After a tie the tracker resolved otherwise the two runs need not agree,
+//     so the tracker is followed rather than dropped: the reference is
+//     re-run from that step's predicted states with the tracker's
+//     hypothesis forced in the tied clusters (tracker.StepWith; whole
+//     clusters, the other clusters as before), and from then on continued
+//     step by step from its own posteriors (tracker.StepFrom, an object
+//     that appears later from its prior), exactly as its own run would have
+//     gone had it chosen so. Every later step, estimates included, is
+//     compared with this branch, and a later tie the tracker resolves
+//     otherwise forks the branch again. The branch rejoins the reference's
+//     run once its states are bit for bit the run's again, so it costs one
+//     reference step per step it lasts and nothing while the tracker agrees.
+//     For a tracker that does not report associations, the branch followed
+//     in a cluster whose margin is within τ is the hypothesis within τ of
+//     the cluster's best whose posterior means are nearest the tracker's
+//     estimates: least sum, over the cluster's compared objects, of the
+//     squared Mahalanobis distance (x̂ − x_h)ᵀ P_h⁻¹ (x̂ − x_h) between the
+//     tracker's mean x̂ and the object's posterior N(x_h, P_h) under the
+//     hypothesis (the best wins equal distances); a choice other than the
+//     best is a tie, and the objects it moves are followed. A harmless
+//     choice at a tie thus passes, and a fault after it (a biased estimate,
+//     say) fails at its own step, whatever the tracker reports. Where no
+//     branch can be run (a Detail built by hand, without the scenario and
+//     its scans), the objects of a tie are no longer compared after it, and
+//     the message says so. An object that diverged (a regression) is no longer compared. Its
+//     state may rightly differ from the reference's,
 //     and then so may the choice of every object whose association depends on
 //     it: at each step, a live object joined to a stopped one by a chain of
 //     objects sharing a detection (one in its gate in the reference's cost
