@@ -6,6 +6,7 @@ import (
 	"math"
 	"runtime"
 	"runtime/debug"
+	"sort"
 	"strconv"
 	"unicode/utf8"
 
@@ -28,12 +29,15 @@ const (
 	Output Kind = "output"
 	// Metrics: metric values of one run.
 	Metrics Kind = "metrics"
+	// RunValues: a tracker's whole-run metric values for every run of a
+	// scenario, one record per run (the header's run and seed are 0).
+	RunValues Kind = "run-values"
 )
 
 // Valid reports whether k is one of the defined kinds.
 func (k Kind) Valid() bool {
 	switch k {
-	case Tape, Reference, Output, Metrics:
+	case Tape, Reference, Output, Metrics, RunValues:
 		return true
 	}
 	return false
@@ -119,6 +123,14 @@ type Metric struct {
 	Value float64
 }
 
+// RunValue is one record of a RunValues file: the whole-run metric values
+// of run Run, simulated from Seed.
+type RunValue struct {
+	Run    int
+	Seed   uint64
+	Values map[string]float64
+}
+
 // File is one golden file: the header and the records of its kind (only
 // the slice matching Header.Kind is used).
 type File struct {
@@ -126,6 +138,7 @@ type File struct {
 	Steps   []Step      // Tape
 	Frames  []mot.Frame // Reference, Output
 	Metrics []Metric    // Metrics
+	Runs    []RunValue  // RunValues, runs increasing
 }
 
 // enc appends JSON to a buffer with keys in the order they are written.
@@ -326,12 +339,35 @@ func appendMetric(b []byte, m Metric) []byte {
 	return e.b
 }
 
+func appendRunValue(b []byte, r RunValue) []byte {
+	e := enc{b: b}
+	e.open('{')
+	e.int("run", int64(r.Run))
+	e.uint("seed", r.Seed)
+	e.key("values")
+	e.open('{')
+	names := make([]string, 0, len(r.Values))
+	for n := range r.Values {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		e.float(n, r.Values[n])
+	}
+	e.close('}')
+	e.val()
+	e.close('}')
+	return e.b
+}
+
 // trackerFits returns a message when a tracker name does not fit the kind:
-// Output needs one, Tape and Reference must not have one.
+// Output and RunValues need one, Tape and Reference must not have one.
 func trackerFits(k Kind, tracker string) string {
 	switch {
 	case k == Output && tracker == "":
 		return "a tracker output golden needs a tracker name"
+	case k == RunValues && tracker == "":
+		return "a run values golden needs a tracker name"
 	case (k == Tape || k == Reference) && tracker != "":
 		return fmt.Sprintf("a %s golden has no tracker, got %q", k, tracker)
 	}
@@ -347,7 +383,7 @@ func Marshal(f File) ([]byte, error) {
 		return nil, fmt.Errorf("golden: header format %d, want %d", h.Format, FormatVersion)
 	}
 	if !h.Kind.Valid() {
-		return nil, fmt.Errorf("golden: header kind %q is not one of tape, reference, output, metrics", h.Kind)
+		return nil, fmt.Errorf("golden: header kind %q is not one of tape, reference, output, metrics, run-values", h.Kind)
 	}
 	if h.Scenario == "" || h.ScenarioHash == "" {
 		return nil, fmt.Errorf("golden: header needs a scenario name and hash")
@@ -363,11 +399,13 @@ func Marshal(f File) ([]byte, error) {
 	n := 0
 	switch h.Kind {
 	case Tape:
-		n = len(f.Frames) + len(f.Metrics)
+		n = len(f.Frames) + len(f.Metrics) + len(f.Runs)
 	case Reference, Output:
-		n = len(f.Steps) + len(f.Metrics)
+		n = len(f.Steps) + len(f.Metrics) + len(f.Runs)
 	case Metrics:
-		n = len(f.Steps) + len(f.Frames)
+		n = len(f.Steps) + len(f.Frames) + len(f.Runs)
+	case RunValues:
+		n = len(f.Steps) + len(f.Frames) + len(f.Metrics)
 	}
 	if n > 0 {
 		return nil, fmt.Errorf("golden: a %s file holds %d records of another kind", h.Kind, n)
@@ -387,6 +425,16 @@ func Marshal(f File) ([]byte, error) {
 	for _, m := range f.Metrics {
 		if !utf8.ValidString(m.Name) {
 			return nil, fmt.Errorf("golden: metric name %q is not valid UTF-8", m.Name)
+		}
+	}
+	for i, r := range f.Runs {
+		if r.Run < 0 || i > 0 && r.Run <= f.Runs[i-1].Run {
+			return nil, fmt.Errorf("golden: run values record %d: run %d, want runs ≥ 0 increasing", i, r.Run)
+		}
+		for n := range r.Values {
+			if n == "" || !utf8.ValidString(n) {
+				return nil, fmt.Errorf("golden: run %d: metric name %q is empty or not valid UTF-8", r.Run, n)
+			}
 		}
 	}
 	for _, fr := range f.Frames {
@@ -409,6 +457,9 @@ func Marshal(f File) ([]byte, error) {
 	}
 	for _, m := range f.Metrics {
 		b = append(appendMetric(b, m), '\n')
+	}
+	for _, r := range f.Runs {
+		b = append(appendRunValue(b, r), '\n')
 	}
 	return b, nil
 }

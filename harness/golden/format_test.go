@@ -258,7 +258,7 @@ func TestReadErrors(t *testing.T) {
 		{"header not json", "{golden", "f.jsonl:1: header: column 2: invalid JSON"},
 		{"header version", `{"golden":7}`, `f.jsonl:1: header: field "golden": format version 7`},
 		{"header unknown key", `{"golden":1,"colour":"red"}`, `f.jsonl:1: header: json: unknown field "colour"`},
-		{"header bad kind", `{"golden":1,"kind":"tapes"}`, `field "kind": expected tape, reference, output or metrics`},
+		{"header bad kind", `{"golden":1,"kind":"tapes"}`, `field "kind": expected tape, reference, output, metrics or run-values`},
 		{"header run type", `{"golden":1,"kind":"tape","scenario":"s","scenario_sha256":"a","run":"zero"}`, `field "run": expected int, got JSON string`},
 		{"no hash", `{"golden":1,"kind":"tape","scenario":"s"}`, `missing field "scenario_sha256"`},
 		{"blank line", h + "\n", "f.jsonl:2: empty line"},

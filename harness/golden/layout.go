@@ -18,6 +18,9 @@ import (
 //	<root>/<scenario>/run-<N>.metrics.jsonl          reference tracker metrics
 //	<root>/<scenario>/<tracker>/run-<N>.jsonl        tracker output
 //	<root>/<scenario>/<tracker>/run-<N>.metrics.jsonl tracker metrics
+//	<root>/<scenario>/<tracker>/metrics.jsonl        tracker whole-run values, every run
+//
+// The ID of the last (kind RunValues) has Run 0.
 type ID struct {
 	Scenario string
 	// Tracker is "" for the scan tape and the reference tracker's files.
@@ -63,6 +66,8 @@ func Path(root string, id ID) (string, error) {
 		return filepath.Join(root, id.Scenario, id.Tracker, run+".jsonl"), nil
 	case id.Tracker != "" && id.Kind == Metrics:
 		return filepath.Join(root, id.Scenario, id.Tracker, run+".metrics.jsonl"), nil
+	case id.Tracker != "" && id.Kind == RunValues && id.Run == 0:
+		return filepath.Join(root, id.Scenario, id.Tracker, "metrics.jsonl"), nil
 	}
 	return "", fmt.Errorf("golden: kind %q does not fit tracker %q", id.Kind, id.Tracker)
 }
@@ -102,6 +107,9 @@ func ParsePath(rel string) (id ID, ok bool) {
 	case 3:
 		if !ValidName(parts[0]) || !ValidName(parts[1]) {
 			return ID{}, false
+		}
+		if parts[2] == "metrics.jsonl" {
+			return ID{Scenario: parts[0], Tracker: parts[1], Kind: RunValues}, true
 		}
 		if n, ok := parseRun(parts[2], ".metrics.jsonl"); ok {
 			return ID{Scenario: parts[0], Tracker: parts[1], Run: n, Kind: Metrics}, true

@@ -104,6 +104,12 @@ type jframe struct {
 	Tracks []jtrack `json:"tracks"`
 }
 
+type jrunvalue struct {
+	Run    *int           `json:"run"`
+	Seed   *uint64        `json:"seed"`
+	Values map[string]num `json:"values"`
+}
+
 type jmetric struct {
 	Metric *string `json:"metric"`
 	Step   *int    `json:"step"`
@@ -204,6 +210,16 @@ func Read(r io.Reader, name string) (File, error) {
 			seenMetric[key] = n
 			f.Metrics = append(f.Metrics, m)
 			continue
+		case RunValues:
+			r, msg := parseRunValue(line)
+			if msg != "" {
+				return fail("%s", msg)
+			}
+			if k := len(f.Runs); k > 0 && r.Run <= f.Runs[k-1].Run {
+				return fail("field \"run\": expected a run after %d, got %d", f.Runs[k-1].Run, r.Run)
+			}
+			f.Runs = append(f.Runs, r)
+			continue
 		}
 		if step <= lastStep {
 			return fail("field \"step\": expected a step after %d, got %d", lastStep, step)
@@ -259,7 +275,7 @@ func parseHeader(line []byte) (Header, string) {
 	case j.Kind == nil:
 		return Header{}, `missing field "kind"`
 	case !Kind(*j.Kind).Valid():
-		return Header{}, fmt.Sprintf("field \"kind\": expected tape, reference, output or metrics, got %q", *j.Kind)
+		return Header{}, fmt.Sprintf("field \"kind\": expected tape, reference, output, metrics or run-values, got %q", *j.Kind)
 	case j.Scenario == nil || *j.Scenario == "":
 		return Header{}, `missing field "scenario"`
 	case j.ScenarioHash == nil || *j.ScenarioHash == "":
@@ -400,4 +416,27 @@ func parseMetric(line []byte) (Metric, string) {
 		m.Step = *j.Step
 	}
 	return m, ""
+}
+
+func parseRunValue(line []byte) (RunValue, string) {
+	var j jrunvalue
+	if msg := decodeLine(line, &j); msg != "" {
+		return RunValue{}, msg
+	}
+	switch {
+	case j.Run == nil || *j.Run < 0:
+		return RunValue{}, `field "run": expected a run index ≥ 0`
+	case j.Seed == nil:
+		return RunValue{}, `missing field "seed"`
+	case j.Values == nil:
+		return RunValue{}, `missing field "values" (an object of metric values)`
+	}
+	r := RunValue{Run: *j.Run, Seed: *j.Seed, Values: make(map[string]float64, len(j.Values))}
+	for n, v := range j.Values {
+		if n == "" {
+			return RunValue{}, `field "values": expected metric names, got ""`
+		}
+		r.Values[n] = float64(v)
+	}
+	return r, ""
 }
