@@ -6,10 +6,9 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
-	"os/exec"
-	"regexp"
-	"runtime"
 	"testing"
+
+	"trackgate/internal/crossbuild"
 )
 
 // bitsOfRun runs 200 predict/update steps of a 6-D model with seeded
@@ -46,31 +45,27 @@ func bitsOfRun() []byte {
 	return buf.Bytes()
 }
 
-// TestSameBitsWithFusedMultiplyAdd rebuilds this test binary with
-// GOAMD64=v3, where the compiler fuses x*y + z unless the product is
-// converted explicitly (Go specification, "Arithmetic operators"), and
-// checks that states, covariances and NIS come out bit for bit the same.
+// TestSameBitsWithFusedMultiplyAdd rebuilds this package's tests for
+// arm64 and for amd64 with GOAMD64=v3, where the compiler fuses x*y + z
+// unless the product is converted explicitly (Go specification,
+// "Arithmetic operators"), runs them (arm64 under qemu-aarch64 on other
+// hosts) and checks that states, covariances and NIS come out bit for bit
+// the same as in this build.
 func TestSameBitsWithFusedMultiplyAdd(t *testing.T) {
 	if os.Getenv("TRACKGATE_KALMAN_BITS") == "1" {
 		os.Stdout.Write(bitsOfRun())
 		return
 	}
-	if testing.Short() || runtime.GOARCH != "amd64" {
-		t.Skip("needs amd64 and a rebuild; skipped under -short")
-	}
-	gobin, err := exec.LookPath("go")
-	if err != nil {
-		t.Skip("go command not found")
-	}
-	cmd := exec.Command(gobin, "test", "-v", "-count=1", "-run", "^TestSameBitsWithFusedMultiplyAdd$", ".")
-	cmd.Env = append(os.Environ(), "GOAMD64=v3", "TRACKGATE_KALMAN_BITS=1", "GOFLAGS=-buildvcs=false")
-	out, err := cmd.Output()
-	if err != nil {
-		t.Skipf("cannot run a GOAMD64=v3 build here: %v", err)
-	}
 	want := bitsOfRun()
-	if !bytes.Contains(out, want) {
-		t.Fatalf("the GOAMD64=v3 build gave different bits:\n%.400s\nwant\n%.400s", out, want)
+	for _, tg := range crossbuild.Fusing() {
+		t.Run(tg.Name, func(t *testing.T) {
+			bin := crossbuild.BuildTest(t, ".", tg)
+			argv := append(crossbuild.Runner(t, tg), bin, "-test.run=^TestSameBitsWithFusedMultiplyAdd$", "-test.v", "-test.count=1")
+			out := crossbuild.Run(t, ".", []string{"TRACKGATE_KALMAN_BITS=1"}, argv...)
+			if !bytes.Contains(out, want) {
+				t.Fatalf("the %s build gave different bits:\n%.400s\nwant\n%.400s", tg.Name, out, want)
+			}
+		})
 	}
 }
 
@@ -80,28 +75,13 @@ func TestSameBitsWithFusedMultiplyAdd(t *testing.T) {
 // contains a fused multiply-add instruction: every product feeding a sum
 // must be rounded by an explicit float64 conversion.
 func TestNoFusedInstructions(t *testing.T) {
-	if testing.Short() {
-		t.Skip("cross-compiles the package; skipped under -short")
-	}
-	gobin, err := exec.LookPath("go")
-	if err != nil {
-		t.Skip("go command not found")
-	}
-	fused := regexp.MustCompile(`\b(FMADDD|FMSUBD|FNMADDD|FNMSUBD|VFN?M(ADD|SUB)\d+SD)\b`)
-	for _, env := range [][]string{{"GOARCH=arm64"}, {"GOARCH=amd64", "GOAMD64=v3"}} {
-		cmd := exec.Command(gobin, "build", "-o", os.DevNull, "-gcflags=-S", ".")
-		cmd.Env = append(append(os.Environ(), "GOFLAGS=-buildvcs=false", "CGO_ENABLED=0"), env...)
-		out, err := cmd.CombinedOutput()
-		if err != nil {
-			t.Fatalf("%v go build: %v\n%.500s", env, err, out)
+	for _, tg := range crossbuild.Fusing() {
+		listing := crossbuild.Assembly(t, ".", tg)
+		if !bytes.Contains(listing, []byte("kalman.(*Filter).UpdateTo")) {
+			t.Fatalf("%s: no assembly listing for UpdateTo in the compiler output", tg.Name)
 		}
-		if !bytes.Contains(out, []byte("kalman.(*Filter).UpdateTo")) {
-			t.Fatalf("%v: no assembly listing for UpdateTo in the compiler output", env)
-		}
-		for _, line := range bytes.Split(out, []byte("\n")) {
-			if fused.Match(line) {
-				t.Errorf("%v: fused instruction: %s", env, bytes.TrimSpace(line))
-			}
+		for _, in := range crossbuild.Fused(listing) {
+			t.Errorf("%s: fused instruction: %s", tg.Name, in.Text)
 		}
 	}
 }

@@ -2,10 +2,9 @@ package tracker
 
 import (
 	"bytes"
-	"os"
-	"os/exec"
-	"regexp"
 	"testing"
+
+	"trackgate/internal/crossbuild"
 )
 
 // TestNoFusedInstructions compiles this package for arm64 and for amd64
@@ -15,28 +14,13 @@ import (
 // probabilities have the same bits on every platform (up to math.Exp and
 // math.Log, see the kalman package documentation).
 func TestNoFusedInstructions(t *testing.T) {
-	if testing.Short() {
-		t.Skip("cross-compiles the package; skipped under -short")
-	}
-	gobin, err := exec.LookPath("go")
-	if err != nil {
-		t.Skip("go command not found")
-	}
-	fused := regexp.MustCompile(`\b(FMADDD|FMSUBD|FNMADDD|FNMSUBD|VFN?M(ADD|SUB)\d+SD)\b`)
-	for _, env := range [][]string{{"GOARCH=arm64"}, {"GOARCH=amd64", "GOAMD64=v3"}} {
-		cmd := exec.Command(gobin, "build", "-o", os.DevNull, "-gcflags=-S", ".")
-		cmd.Env = append(append(os.Environ(), "GOFLAGS=-buildvcs=false", "CGO_ENABLED=0"), env...)
-		out, err := cmd.CombinedOutput()
-		if err != nil {
-			t.Fatalf("%v go build: %v\n%.500s", env, err, out)
+	for _, tg := range crossbuild.Fusing() {
+		listing := crossbuild.Assembly(t, ".", tg)
+		if !bytes.Contains(listing, []byte("tracker.(*engine).associate")) {
+			t.Fatalf("%s: no assembly listing for associate in the compiler output", tg.Name)
 		}
-		if !bytes.Contains(out, []byte("tracker.(*engine).associate")) {
-			t.Fatalf("%v: no assembly listing for associate in the compiler output", env)
-		}
-		for _, line := range bytes.Split(out, []byte("\n")) {
-			if fused.Match(line) {
-				t.Errorf("%v: fused instruction: %s", env, bytes.TrimSpace(line))
-			}
+		for _, in := range crossbuild.Fused(listing) {
+			t.Errorf("%s: fused instruction: %s", tg.Name, in.Text)
 		}
 	}
 }
