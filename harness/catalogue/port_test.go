@@ -2,8 +2,6 @@ package catalogue
 
 import (
 	"context"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"runtime"
 	"strings"
@@ -13,6 +11,7 @@ import (
 	"trackgate/harness/config"
 	"trackgate/harness/result"
 	"trackgate/harness/runner"
+	"trackgate/internal/crossbuild"
 )
 
 // TestPortCertification is port certification in miniature, for fused
@@ -31,9 +30,10 @@ import (
 //     pass the float64-port profile there: the port profile is what
 //     certifies a port whose last bits legitimately differ.
 //
-// The amd64 builds run only on an amd64 host; the arm64 build is skipped
-// with a message when qemu-aarch64 is not installed (Debian: apt-get install
-// qemu-user).
+// The amd64 builds run only on an amd64 host, and the v3 build only on a
+// CPU with the x86-64-v3 features; the arm64 build is skipped with a
+// message when qemu-aarch64 is not installed (Debian: apt-get install
+// qemu-user). The builds and skips come from internal/crossbuild.
 func TestPortCertification(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds trackgate for amd64 v3 and arm64 and runs the stock library six times; skipped under -short")
@@ -41,42 +41,12 @@ func TestPortCertification(t *testing.T) {
 	if runtime.GOARCH != "amd64" {
 		t.Skipf("the amd64 v1 and v3 builds need an amd64 host, this is %s", runtime.GOARCH)
 	}
-	gobin, err := exec.LookPath("go")
-	if err != nil {
-		t.Skip("go command not found")
-	}
-	dir := t.TempDir()
-	build := func(name string, env ...string) string {
-		t.Helper()
-		out := filepath.Join(dir, name)
-		cmd := exec.Command(gobin, "build", "-o", out, "./cmd/trackgate")
-		cmd.Dir = "../.."
-		cmd.Env = append(append(os.Environ(), "CGO_ENABLED=0", "GOFLAGS=-buildvcs=false"), env...)
-		if b, err := cmd.CombinedOutput(); err != nil {
-			t.Fatalf("%v go build: %v\n%s", env, err, b)
-		}
-		return out
-	}
-	type target struct {
-		name  string
-		argv  []string
-		fuses bool
-		skip  string
-	}
-	targets := []target{
-		{name: "amd64-v1", argv: []string{bin}}, // built by TestMain for amd64 v1
-		{name: "amd64-v3", argv: []string{build("trackgate-v3", "GOARCH=amd64", "GOAMD64=v3")}, fuses: true},
-	}
-	if qemu, err := exec.LookPath("qemu-aarch64"); err == nil {
-		targets = append(targets, target{name: "arm64", argv: []string{qemu, build("trackgate-arm64", "GOARCH=arm64")}, fuses: true})
-	} else {
-		targets = append(targets, target{name: "arm64", skip: "qemu-aarch64 not found: the arm64 port is not checked (Debian: apt-get install qemu-user)"})
-	}
+	targets := []crossbuild.Target{crossbuild.AMD64v1, crossbuild.AMD64v3, crossbuild.ARM64}
 	files, err := filepath.Glob("../../scenarios/*.yaml")
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no stock scenarios (err %v)", err)
 	}
-	check := func(argv []string, profile string) *result.Suite {
+	check := func(t *testing.T, argv []string, profile string) *result.Suite {
 		t.Helper()
 		s, err := runner.Check(context.Background(), runner.Options{
 			Config:    config.Config{TieMargin: 1e-9},
@@ -93,28 +63,30 @@ func TestPortCertification(t *testing.T) {
 		return s
 	}
 	for _, tg := range targets {
-		t.Run(tg.name, func(t *testing.T) {
-			if tg.skip != "" {
-				t.Skip(tg.skip)
+		t.Run(tg.Name, func(t *testing.T) {
+			argv := []string{bin} // TestMain built it for amd64 v1
+			if tg.Name != crossbuild.AMD64v1.Name {
+				prefix := crossbuild.Runner(t, tg)
+				argv = append(prefix, crossbuild.Build(t, "../..", "./cmd/trackgate", tg))
 			}
-			ref := check(append(tg.argv[:len(tg.argv):len(tg.argv)], "reference"), compare.BitExactName)
+			ref := check(t, append(argv[:len(argv):len(argv)], "reference"), compare.BitExactName)
 			if ref.Status != result.Pass {
-				t.Errorf("reference built for %s: %s under bit-exact, want pass: %s", tg.name, ref.Status, problems(ref))
+				t.Errorf("reference built for %s: %s under bit-exact, want pass: %s", tg.Name, ref.Status, problems(ref))
 			}
-			fused := append(tg.argv[:len(tg.argv):len(tg.argv)], "reference", "-variant", "fused")
-			exact := check(fused, compare.BitExactName)
+			fused := append(argv[:len(argv):len(argv)], "reference", "-variant", "fused")
+			exact := check(t, fused, compare.BitExactName)
 			diffs, kinds := estimateDiffs(exact)
 			switch {
-			case !tg.fuses && exact.Status != result.Pass:
-				t.Errorf("fused variant on %s, where nothing fuses: %s under bit-exact, want pass: %s", tg.name, exact.Status, problems(exact))
-			case tg.fuses && (exact.Status != result.Fail || diffs == 0 || kinds != "estimate"):
-				t.Errorf("fused variant on %s: %s under bit-exact with %d differences of kinds %q, want fail with estimate differences in the last bits", tg.name, exact.Status, diffs, kinds)
+			case !tg.Fuses && exact.Status != result.Pass:
+				t.Errorf("fused variant on %s, where nothing fuses: %s under bit-exact, want pass: %s", tg.Name, exact.Status, problems(exact))
+			case tg.Fuses && (exact.Status != result.Fail || diffs == 0 || kinds != "estimate"):
+				t.Errorf("fused variant on %s: %s under bit-exact with %d differences of kinds %q, want fail with estimate differences in the last bits", tg.Name, exact.Status, diffs, kinds)
 			}
-			port := check(fused, compare.Float64PortName)
+			port := check(t, fused, compare.Float64PortName)
 			if port.Status != result.Pass {
-				t.Errorf("fused variant on %s: %s under float64-port, want pass: %s", tg.name, port.Status, problems(port))
+				t.Errorf("fused variant on %s: %s under float64-port, want pass: %s", tg.Name, port.Status, problems(port))
 			}
-			t.Logf("%s: reference bit-exact %s; fused bit-exact %s (%d values differ), float64-port %s", tg.name, ref.Status, exact.Status, diffs, port.Status)
+			t.Logf("%s: reference bit-exact %s; fused bit-exact %s (%d values differ), float64-port %s", tg.Name, ref.Status, exact.Status, diffs, port.Status)
 		})
 	}
 }
