@@ -170,3 +170,45 @@ func TestStepChainIsRun(t *testing.T) {
 		}
 	}
 }
+
+// FuzzStepWith: whatever association is forced on quayScan, StepWith
+// returns an error or a detail in which every forced object took its
+// forced detection, no detection twice, and finite posteriors; it never
+// panics.
+func FuzzStepWith(f *testing.F) {
+	f.Add(uint8(0), int16(22), uint8(1), int16(21), uint8(2), int16(23))
+	f.Add(uint8(0), int16(-1), uint8(1), int16(-1), uint8(2), int16(-1))
+	f.Add(uint8(0), int16(21), uint8(0), int16(22), uint8(5), int16(99))
+	f.Fuzz(func(t *testing.T, o1 uint8, d1 int16, o2 uint8, d2 int16, o3 uint8, d3 int16) {
+		md, states, scan := quayScan()
+		ids := []string{"pallet-east", "pallet-west", "forklift", "crane"}
+		force := map[string]int{}
+		for _, p := range []struct {
+			o uint8
+			d int16
+		}{{o1, d1}, {o2, d2}, {o3, d3}} {
+			force[ids[int(p.o)%len(ids)]] = int(p.d)
+		}
+		d, err := StepWith(md, states, scan, 3, 0, force)
+		if err != nil {
+			return
+		}
+		used := map[int]bool{}
+		for _, od := range d.Objects {
+			if want, ok := force[od.Object]; ok && od.Detection != want {
+				t.Fatalf("%s took %d, forced %d", od.Object, od.Detection, want)
+			}
+			if od.Detection != mot.NoDetection {
+				if used[od.Detection] {
+					t.Fatalf("detection %d used twice", od.Detection)
+				}
+				used[od.Detection] = true
+			}
+			for _, v := range append(slices.Clone(od.Mean), od.Cov.Data...) {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					t.Fatalf("%s: posterior %v %v not finite", od.Object, od.Mean, od.Cov.Data)
+				}
+			}
+		}
+	})
+}
