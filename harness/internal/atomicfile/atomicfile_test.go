@@ -1,6 +1,7 @@
 package atomicfile
 
 import (
+	"bytes"
 	"errors"
 	"io"
 	"os"
@@ -136,6 +137,18 @@ func TestIsTemp(t *testing.T) {
 	for _, tt := range tests {
 		if got := IsTemp(tt.name); got != tt.want {
 			t.Errorf("IsTemp(%q) = %v, want %v", tt.name, got, tt.want)
+		}
+	}
+}
+
+func BenchmarkWriteBytes(b *testing.B) {
+	path := filepath.Join(b.TempDir(), "bench.json")
+	data := bytes.Repeat([]byte("{\"track\":\"ferry\",\"mean\":[1.5,2,3,4]}\n"), 2000)
+	b.SetBytes(int64(len(data)))
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := WriteBytes(path, data); err != nil {
+			b.Fatal(err)
 		}
 	}
 }
