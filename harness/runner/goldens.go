@@ -216,7 +216,9 @@ func (s *settings) judgeArtefact(j *job, a *artefact) {
 		}
 	case golden.Metrics:
 		want := metricMap(f.Metrics)
-		if a.id.Tracker != "" {
+		if a.id.Tracker != "" && j.blessed == nil {
+			// Goldens blessed before the run values file: the golden
+			// runs' values come from their metrics files.
 			j.blessed = map[string]float64{}
 			for _, m := range f.Metrics {
 				if m.Step < 0 {
@@ -490,6 +492,31 @@ func (s *settings) checkGolden(j *job) []result.Check {
 		}
 		out.c.Truncated += c.Truncated
 	}
+	switch vals, st, detail := s.blessedRun(j); st {
+	case golden.Missing:
+		missing = append(missing, "tracker run values")
+		if ci {
+			out.c.Status = result.Worst(out.c.Status, result.Fail)
+		} else {
+			out.c.Status = result.Worst(out.c.Status, result.Skip)
+		}
+	case golden.Outdated:
+		out.c.Status = result.Error
+		msgs = append(msgs, detail)
+	case golden.Passing:
+		if _, met := trackerPair(arts); met != nil && met.status == golden.Passing && met.blessed.Header.Kind == golden.Metrics {
+			whole := map[string]float64{}
+			for _, m := range met.blessed.Metrics {
+				if m.Step < 0 {
+					whole[m.Name] = m.Value
+				}
+			}
+			if r := compare.Metrics(j.sc.profile, whole, vals); !r.OK() {
+				out.c.Status = result.Error
+				msgs = append(msgs, fmt.Sprintf("the tracker's run values in %s disagree with its metrics golden %s for run %d (%d difference(s), first %s): the two were not blessed together; bless again", detail, met.path, j.index, len(r.Diffs), describe(r.Diffs[0])))
+			}
+		}
+	}
 	if len(missing) > 0 {
 		m := fmt.Sprintf("no golden %s for run %d under %s", strings.Join(missing, ", "), j.index, s.goldenRoot)
 		if ci {
@@ -503,6 +530,123 @@ func (s *settings) checkGolden(j *job) []result.Check {
 		msgs = append(msgs, fmt.Sprintf("%d golden files agree", len(arts)))
 	}
 	return []result.Check{out.done(strings.Join(msgs, "; "))}
+}
+
+// valuesPath returns the tracker's run values golden of scenario sc.
+func (s *settings) valuesPath(sc *scen) (string, error) {
+	return golden.Path(s.goldenRoot, golden.ID{Scenario: sc.spec.Name, Tracker: s.name, Kind: golden.RunValues})
+}
+
+// blessedRun reads the tracker's blessed whole-run values of run j from
+// the run values golden of its scenario. The status is Passing with the
+// values (detail is then the file's path), Missing when there is no file
+// or no record of the run, Outdated when the file is stale, foreign or
+// unreadable or the run's record has another seed; detail says which.
+func (s *settings) blessedRun(j *job) (map[string]float64, golden.Status, string) {
+	p, err := s.valuesPath(j.sc)
+	if err != nil {
+		return nil, golden.Outdated, err.Error()
+	}
+	f, fr, err := golden.ReadFresh(p, j.sc.spec.Name, j.sc.spec.Hash)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		return nil, golden.Missing, fmt.Sprintf("no golden tracker run values at %s", p)
+	case err != nil:
+		return nil, golden.Outdated, fmt.Sprintf("unreadable golden tracker run values: %v", err)
+	case fr != golden.Fresh:
+		return nil, golden.Outdated, fmt.Sprintf("%s golden %s (made from another version of the scenario file than %s); bless again", strings.ToLower(fr.String()), p, j.sc.file)
+	}
+	for _, r := range f.Runs {
+		if r.Run != j.index {
+			continue
+		}
+		if r.Seed != j.run.Seed {
+			return nil, golden.Outdated, fmt.Sprintf("the golden %s holds run %d with seed %d, but the run is simulated from seed %d; bless again", p, j.index, r.Seed, j.run.Seed)
+		}
+		return r.Values, golden.Passing, p
+	}
+	return nil, golden.Missing, fmt.Sprintf("the golden %s has no values for run %d", p, j.index)
+}
+
+// runValues is what Bless would write to a scenario's run values golden
+// and how that compares with the file on disk.
+type runValues struct {
+	path   string
+	file   golden.File
+	status golden.Status
+}
+
+// blessValues builds the run values golden of scenario sc from its jobs
+// that ran cleanly, keeping the records of a fresh file on disk for the
+// runs not run now (another shard's, a fault, a --runs override), and
+// judges it: Missing, Outdated (stale, foreign or unreadable), Failing
+// (a run's values differ beyond the profile's metric rule, a seed or the
+// set of runs changed) or Passing.
+func (s *settings) blessValues(sc *scen) (*runValues, error) {
+	p, err := s.valuesPath(sc)
+	if err != nil {
+		return nil, err
+	}
+	h := golden.NewHeader(golden.RunValues, sc.spec.Name, sc.spec.Hash, 0, 0, 0)
+	h.Tracker = s.name
+	now := map[int]golden.RunValue{}
+	for _, j := range sc.jobs {
+		if j.refErr != nil || j.res.Fault != nil || j.score == nil {
+			continue
+		}
+		if h.Protocol == 0 {
+			h.Protocol = j.res.Tracker.Protocol
+		}
+		v := make(map[string]float64, len(j.score.whole))
+		for k, x := range j.score.whole {
+			v[k] = x
+		}
+		now[j.index] = golden.RunValue{Run: j.index, Seed: j.run.Seed, Values: v}
+	}
+	rv := &runValues{path: p, file: golden.File{Header: h}, status: golden.Passing}
+	old, fr, err := golden.ReadFresh(p, sc.spec.Name, sc.spec.Hash)
+	merged := map[int]golden.RunValue{}
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		rv.status = golden.Missing
+	case err != nil || fr != golden.Fresh:
+		rv.status = golden.Outdated
+	default:
+		for _, r := range old.Runs {
+			if r.Run >= sc.spec.Runs {
+				rv.status = golden.Failing // a run the scenario no longer has
+				continue
+			}
+			merged[r.Run] = r
+			n, ok := now[r.Run]
+			if !ok {
+				continue
+			}
+			if cmp := compare.Metrics(sc.profile, r.Values, n.Values); n.Seed != r.Seed || !cmp.OK() {
+				rv.status = golden.Failing
+			}
+		}
+		for k := range now {
+			if _, ok := merged[k]; !ok {
+				rv.status = golden.Failing // a run without blessed values
+			}
+		}
+	}
+	for k, r := range now {
+		merged[k] = r
+	}
+	if len(merged) == 0 {
+		return nil, nil
+	}
+	runs := make([]int, 0, len(merged))
+	for k := range merged {
+		runs = append(runs, k)
+	}
+	sort.Ints(runs)
+	for _, k := range runs {
+		rv.file.Runs = append(rv.file.Runs, merged[k])
+	}
+	return rv, nil
 }
 
 // leaveActual writes the actual output of a failing golden for review:
@@ -591,13 +735,17 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 	}
 	pol := golden.NewPolicy(mode, s.CI, s.getenv)
 	rep := &BlessReport{Root: s.goldenRoot, CI: pol.CI}
+	rewritten := map[*scen]bool{} // a tracker golden of the scenario is (re)written
 	scens := s.load()
 	for _, sc := range scens {
 		if sc.err != nil {
 			rep.Problems = append(rep.Problems, fmt.Sprintf("scenario %s: %v", sc.file, sc.err))
 		}
 	}
-	jobs := s.plan(scens, func(sc *scen, r int) bool { return r < s.goldenRunsOf(sc) && s.Shard.Holds(sc.spec.Name, r) })
+	// Every run is run: the tracker's whole-run values are blessed for
+	// all of them (the run values golden), the other goldens for the
+	// first G.
+	jobs := s.plan(scens, func(sc *scen, r int) bool { return s.Shard.Holds(sc.spec.Name, r) })
 	s.parallel(len(jobs), func(i int) { s.prepareJob(jobs[i]) })
 	s.drive(ctx, jobs)
 	arts := make([][]*artefact, len(jobs))
@@ -608,6 +756,9 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 			return
 		}
 		s.scoreJob(j)
+		if j.index >= s.goldenRunsOf(j.sc) {
+			return
+		}
 		clean := j.res.Fault == nil && j.score != nil
 		arts[i], errs[i] = s.artefacts(j, clean)
 		for _, a := range arts[i] {
@@ -626,7 +777,7 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 			continue
 		case j.res.Fault != nil:
 			rep.Faulted = true
-			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the tracker faulted, its goldens were not written: %v", where, j.res.Fault))
+			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the tracker faulted, its goldens and run values were not written: %v", where, j.res.Fault))
 		case j.score == nil:
 			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: the tracker's metrics could not be computed; its goldens were not written", where))
 		}
@@ -636,6 +787,9 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 		}
 		coupleTracker(arts[i], acts, pol)
 		for k, a := range arts[i] {
+			if acts[k] != golden.Keep && a.id.Tracker != "" {
+				rewritten[j.sc] = true
+			}
 			rel, _ := filepath.Rel(s.goldenRoot, a.path)
 			switch acts[k] {
 			case golden.Keep:
@@ -652,6 +806,39 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 				} else {
 					rep.Written = append(rep.Written, rel)
 				}
+			}
+		}
+	}
+	for _, sc := range scens {
+		if sc.err != nil {
+			continue
+		}
+		rv, err := s.blessValues(sc)
+		if err != nil {
+			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: %v", sc.spec.Name, err))
+			continue
+		}
+		if rv == nil {
+			continue
+		}
+		act := pol.Decide(rv.status)
+		if act == golden.Keep && rewritten[sc] && !sameBytes(&artefact{path: rv.path, file: rv.file}) {
+			// Blessed with the tracker's other goldens, as one unit.
+			act = pol.Decide(golden.Failing)
+		}
+		rel, _ := filepath.Rel(s.goldenRoot, rv.path)
+		switch act {
+		case golden.Keep:
+			rep.Unchanged = append(rep.Unchanged, rel)
+		case golden.Fail:
+			rep.Refused = append(rep.Refused, rel)
+		case golden.Rewrite:
+			if err := writeGolden(rv.path, rv.file, o.MidWrite); err != nil {
+				rep.Problems = append(rep.Problems, fmt.Sprintf("%s: writing %s: %v", sc.spec.Name, rv.path, err))
+			} else if rv.status == golden.Missing {
+				rep.New = append(rep.New, rel)
+			} else {
+				rep.Written = append(rep.Written, rel)
 			}
 		}
 	}

@@ -166,9 +166,15 @@ func judgeGates(sc *result.Scenario, gates []config.Gate) []result.Gate {
 			out = append(out, absoluteGate(g, key, cand))
 		}
 		if g.Paired != nil {
-			if len(blessed) >= 2 {
+			switch {
+			case len(blessed) > 0 && len(blessed) == len(cand):
 				out = append(out, pairedGate(g, key, candB, blessed, "the blessed metrics"))
-			} else {
+			case len(blessed) > 0:
+				// Never judged silently on a subset of the runs.
+				pg := pairedGate(g, key, candRef, ref, "the reference")
+				pg.Message += fmt.Sprintf(" (blessed values cover %d of the %d runs, so the gate is judged against the reference on every run; bless to record them for all runs)", len(blessed), len(cand))
+				out = append(out, pg)
+			default:
 				out = append(out, pairedGate(g, key, candRef, ref, "the reference"))
 			}
 		}

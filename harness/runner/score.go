@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"trackgate/harness/config"
+	"trackgate/harness/golden"
 	"trackgate/harness/metrics"
 	"trackgate/harness/mot"
 	"trackgate/harness/result"
@@ -210,6 +211,11 @@ func (s *settings) scoreJob(j *job) {
 			Message: fmt.Sprintf("the tracker's metrics could not be computed: %v", j.score.err)})
 		j.score = nil
 		return
+	}
+	if s.against != AgainstReference {
+		if v, st, _ := s.blessedRun(j); st == golden.Passing {
+			j.blessed = v
+		}
 	}
 	if n := j.score.skipped; n > 0 {
 		j.out.Checks = append(j.out.Checks, result.Check{Name: "metrics", Status: result.Pass,
