@@ -119,15 +119,26 @@
 // For the first G runs of a scenario (Options.GoldenRuns, else golden_runs
 // of the project file, per scenario or project-wide, else 3) the golden
 // folder holds the scan tape, the reference's frames and metrics and, per
-// tracker name, the tracker's frames and metrics (layout in package golden).
+// tracker name, the tracker's frames and metrics; for every run of the
+// scenario it holds the tracker's whole-run values, in one run values file
+// per scenario and tracker (layout in package golden). Bless runs every
+// run to record them.
 // A stale golden (its scenario file changed) is never compared and makes
 // the run an error; a tape or reference golden that differs from what the
 // simulator and the reference produce now is an error naming them (the
 // harness changed, not the tracker); the tracker's frames are compared with
 // its blessed frames after alignment, under the same profile and tie rule
-// (the reference's margin at the step; a track is not compared after its
-// association changed), and its metrics under the profile's metric rule
-// (not when the run parted from the golden after a changed association). A failing comparison
+// as the reference check: a changed association is judged by the margins
+// of the reference's clusters in which it happens (the blessed tracks are
+// mapped to the reference's objects by aligning the blessed frames with
+// the reference's), and a track is not compared after its association
+// changed. The tracker's metrics are compared under the profile's metric
+// rule. The tracker's output, metrics and run values are blessed as one
+// unit (when one is rewritten, so are the others), so a metrics difference
+// while the output agrees means an inconsistent golden, an error that asks
+// to bless again; while the output differs, it is part of that failure;
+// after a tied association that parts the run from its golden, the metrics
+// are not compared. A failing comparison
 // leaves the actual output beside the golden as <golden>.actual (or under
 // Options.Out; in CI mode only there). A missing golden is skipped, or a
 // failure in CI mode.
@@ -140,13 +151,18 @@
 // positions and the track positions; the per-step matching of that GOSPA
 // maps tracks to objects for the identity switches, false tracks, missed
 // objects and position RMSE of metrics.ScoreRun and for the NEES of matched
-// tracks that report covariances. Per scenario: the mean GOSPA per step over
-// runs, the average NEES per step with its chi-square band at 95 % and the
-// fraction of steps inside it. Gates from the project file are judged on
-// per-run values: an absolute gate on the mean over runs, a paired gate
-// (metrics.Paired) against a baseline on the same seeds: the blessed
-// metrics of the tracker when at least two runs have them and goldens are
-// compared, the reference's metrics otherwise.
+// tracks that report covariances; a covariance that is not positive
+// definite (the protocol admits any symmetric one) leaves its sample out of
+// the NEES, and the run's metrics check says how many (nees_skipped) while
+// GOSPA and the rest are kept. Per scenario: the mean GOSPA per step over
+// runs, the average NEES per step judged against the chi-square band at
+// 95 % of its own sample count (runs × matched tracks at the step; see
+// Judge) and the fraction of steps inside it. Gates from the project file
+// are judged on per-run values: an absolute gate on the mean over runs, a
+// paired gate (metrics.Paired) against a baseline on the same seeds: the
+// tracker's blessed values when every run has them (goldens compared), the
+// reference's otherwise; when only some runs have blessed values the gate
+// is judged against the reference on every run and its message says so.
 //
 // Every run carries in the result what its scenario's summary and gates
 // are computed from: its per-step GOSPA and NEES values (RunMetrics), its

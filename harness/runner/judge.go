@@ -30,21 +30,26 @@ import (
 //	GOSPA per step:  the mean over runs of the run's GOSPA at the step;
 //	MeanGOSPA:       the mean over runs of the run's time average;
 //	PositionRMSE:    sqrt of the mean over runs of the run's RMSE²;
-//	NEES per step:   the mean of every matched track's NEES at the step over
-//	                 all runs, judged against the chi-square band
-//	                 [χ²_{nN}⁻¹((1−c)/2), χ²_{nN}⁻¹((1+c)/2)] / N, c = 0.95.
+//	NEES per step:   the mean of the M_k NEES values at step k (every
+//	                 matched track that reports a covariance, over all
+//	                 runs), judged against the chi-square band of its own
+//	                 count, [χ²_{n·M_k}⁻¹((1−c)/2), χ²_{n·M_k}⁻¹((1+c)/2)] / M_k,
+//	                 c = 0.95; Metrics.NEESLow and NEESHigh hold that band
+//	                 when every judged step has the same M_k, else are 0.
 //
 // An absolute gate compares the mean of the runs' values with its limit;
 // a paired gate (metrics.Paired) compares the runs' values with a baseline
-// on the same seeds: the blessed values when at least two runs carry them,
-// the reference's otherwise.
+// on the same seeds: the blessed values when every run with a value
+// carries them, the reference's otherwise (and, when only some runs carry
+// blessed values, the gate's message says it was judged against the
+// reference on every run instead).
 //
 // The error is for a gate naming an unknown metric; s is then unchanged.
 //
 // References:
 //   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications
-//     to Tracking and Navigation", Wiley, 2001, §5.4 (the N-run average NEES
-//     and its chi-square acceptance interval).
+//     to Tracking and Navigation", Wiley, 2001, §5.4.2 (the average of M
+//     independent NEES values and its chi-square acceptance interval).
 //   - W. S. Gosset ("Student"), "The probable error of a mean", Biometrika
 //     6(1):1–25, 1908 (the paired t interval of metrics.Paired).
 func Judge(s *result.Suite, cfg config.Config) error {
@@ -125,7 +130,22 @@ func summarise(sc *result.Scenario) *result.Metrics {
 				out.NEES = append(out.NEES, st.Mean)
 			}
 		}
-		out.NEESLow, out.NEESHigh = metrics.Interval(sc.StateDim, out.Runs, NEESConfidence)
+		// Each step's mean is judged against the band of its own sample
+		// count (runs × matched tracks at the step). One band is stored
+		// only when every judged step has the same count; otherwise no
+		// single band describes the steps and none is stored (nees_in_band
+		// still judges each step by its own).
+		count := -1
+		for _, st := range cons.Steps {
+			switch {
+			case st.Count == 0:
+			case count == -1:
+				count = st.Count
+				out.NEESLow, out.NEESHigh = st.Lo, st.Hi
+			case st.Count != count:
+				out.NEESLow, out.NEESHigh = 0, 0
+			}
+		}
 		out.NEESConfidence = NEESConfidence
 		out.NEESInBand = cons.InsideFraction
 	}
