@@ -494,6 +494,9 @@ func (s *settings) checkGolden(j *job) []result.Check {
 	}
 	switch vals, st, detail := s.blessedRun(j); st {
 	case golden.Missing:
+		if j.res.Fault != nil {
+			break // nothing is blessed for a run the tracker faults on
+		}
 		missing = append(missing, "tracker run values")
 		if ci {
 			out.c.Status = result.Worst(out.c.Status, result.Fail)
@@ -505,13 +508,7 @@ func (s *settings) checkGolden(j *job) []result.Check {
 		msgs = append(msgs, detail)
 	case golden.Passing:
 		if _, met := trackerPair(arts); met != nil && met.status == golden.Passing && met.blessed.Header.Kind == golden.Metrics {
-			whole := map[string]float64{}
-			for _, m := range met.blessed.Metrics {
-				if m.Step < 0 {
-					whole[m.Name] = m.Value
-				}
-			}
-			if r := compare.Metrics(j.sc.profile, whole, vals); !r.OK() {
+			if r := compare.Metrics(j.sc.profile, wholeOf(met.blessed.Metrics), vals); !r.OK() {
 				out.c.Status = result.Error
 				msgs = append(msgs, fmt.Sprintf("the tracker's run values in %s disagree with its metrics golden %s for run %d (%d difference(s), first %s): the two were not blessed together; bless again", detail, met.path, j.index, len(r.Diffs), describe(r.Diffs[0])))
 			}
@@ -581,8 +578,10 @@ type runValues struct {
 // runs not run now (another shard's, a fault, a --runs override), and
 // judges it: Missing, Outdated (stale, foreign or unreadable), Failing
 // (a run's values differ beyond the profile's metric rule, a seed or the
-// set of runs changed) or Passing.
-func (s *settings) blessValues(sc *scen) (*runValues, error) {
+// set of runs changed) or Passing. A golden run whose tracker metrics
+// golden is kept (kept) keeps that golden's values, so that the two agree
+// even when the run legitimately parts from its golden after a tie.
+func (s *settings) blessValues(sc *scen, kept map[*job]map[string]float64) (*runValues, error) {
 	p, err := s.valuesPath(sc)
 	if err != nil {
 		return nil, err
@@ -600,6 +599,9 @@ func (s *settings) blessValues(sc *scen) (*runValues, error) {
 		v := make(map[string]float64, len(j.score.whole))
 		for k, x := range j.score.whole {
 			v[k] = x
+		}
+		if kv, ok := kept[j]; ok {
+			v = kv
 		}
 		now[j.index] = golden.RunValue{Run: j.index, Seed: j.run.Seed, Values: v}
 	}
@@ -735,7 +737,8 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 	}
 	pol := golden.NewPolicy(mode, s.CI, s.getenv)
 	rep := &BlessReport{Root: s.goldenRoot, CI: pol.CI}
-	rewritten := map[*scen]bool{} // a tracker golden of the scenario is (re)written
+	rewritten := map[*scen]bool{}         // a tracker golden of the scenario is (re)written
+	kept := map[*job]map[string]float64{} // whole-run values of kept tracker metrics goldens
 	scens := s.load()
 	for _, sc := range scens {
 		if sc.err != nil {
@@ -790,6 +793,11 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 			if acts[k] != golden.Keep && a.id.Tracker != "" {
 				rewritten[j.sc] = true
 			}
+			if acts[k] == golden.Keep && a.id.Tracker != "" && a.id.Kind == golden.Metrics && a.blessed.Header.Kind == golden.Metrics {
+				// The run's metrics golden stays: its run values record
+				// must keep agreeing with it.
+				kept[j] = wholeOf(a.blessed.Metrics)
+			}
 			rel, _ := filepath.Rel(s.goldenRoot, a.path)
 			switch acts[k] {
 			case golden.Keep:
@@ -813,7 +821,7 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 		if sc.err != nil {
 			continue
 		}
-		rv, err := s.blessValues(sc)
+		rv, err := s.blessValues(sc, kept)
 		if err != nil {
 			rep.Problems = append(rep.Problems, fmt.Sprintf("%s: %v", sc.spec.Name, err))
 			continue
@@ -943,4 +951,15 @@ func writeGolden(path string, f golden.File, mid func(string)) error {
 		_, err := w.Write(data[half:])
 		return err
 	})
+}
+
+// wholeOf returns the whole-run records of a metrics golden by name.
+func wholeOf(ms []golden.Metric) map[string]float64 {
+	out := map[string]float64{}
+	for _, m := range ms {
+		if m.Step < 0 {
+			out[m.Name] = m.Value
+		}
+	}
+	return out
 }
