@@ -67,7 +67,7 @@ func addCommon(fs *flag.FlagSet, withAgainst bool) *commonFlags {
 		f.against = fs.String("against", "both", "compare with the reference, the golden files, or both")
 	}
 	f.configFile = fs.String("config", config.FileName, "the project file; a missing file means the defaults")
-	f.runs = fs.Int("runs", 0, "replace every scenario's run count (0: the scenario's own)")
+	f.runs = fs.Int("runs", 0, fmt.Sprintf("replace every scenario's run count, at most %d (0: the scenario's own)", runner.MaxRuns))
 	f.jobs = fs.Int("j", runtime.NumCPU(), "runs handled at once (results do not depend on it)")
 	f.shardText = fs.String("shard", "", "run only shard K of N, written K/N")
 	f.shardBase = fs.Int("shard-base", 0, "the number of the first shard in --shard: 0 or 1")
@@ -97,13 +97,16 @@ func (f *commonFlags) options(scenarios []string) (runner.Options, error) {
 		if len(argv) == 0 {
 			return o, errors.New("--tracker: expected a command, got an empty line")
 		}
+		if argv[0] == "" {
+			return o, fmt.Errorf("--tracker: expected a program name as the first word, got an empty word in %q", *f.tracker)
+		}
 		o.Tracker = argv
 	}
 	if f.against != nil {
 		o.Against = runner.Against(*f.against)
 	}
-	if *f.runs < 0 {
-		return o, fmt.Errorf("--runs: expected a positive number, got %d", *f.runs)
+	if *f.runs < 0 || *f.runs > runner.MaxRuns {
+		return o, fmt.Errorf("--runs: expected a number of runs from 1 to %d (or 0 for each scenario's own), got %d", runner.MaxRuns, *f.runs)
 	}
 	o.Runs = *f.runs
 	if *f.jobs < 1 {

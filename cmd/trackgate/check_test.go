@@ -13,6 +13,7 @@ import (
 
 	"trackgate/harness/golden"
 	"trackgate/harness/result"
+	"trackgate/harness/runner"
 )
 
 // gateTrackerEnv makes the test binary serve 'trackgate reference' when
@@ -301,5 +302,35 @@ func TestCheckHelp(t *testing.T) {
 		if !strings.Contains(out, want) {
 			t.Errorf("manual lacks %q", want)
 		}
+	}
+}
+
+// TestCheckRejectsBadCounts: an empty program name and a run count past
+// runner.MaxRuns are usage errors (exit 2), found before anything runs.
+func TestCheckRejectsBadCounts(t *testing.T) {
+	cfg, _ := gateProject(t, "warmup-rail-carts")
+	tests := []struct {
+		name string
+		args []string
+		want string
+	}{
+		{"empty program", []string{"--tracker", "''"}, "--tracker: expected a program name as the first word"},
+		{"empty program with arguments", []string{"--tracker", `"" -v`}, "--tracker: expected a program name as the first word"},
+		{"runs past the cap", []string{"--runs", "1000000000000"}, fmt.Sprintf("--runs: expected a number of runs from 1 to %d", runner.MaxRuns)},
+		{"runs one past the cap", []string{"--runs", fmt.Sprint(runner.MaxRuns + 1)}, "--runs: expected a number of runs"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			args := append([]string{"check", "--config", cfg, "--quiet"}, tt.args...)
+			code, out, errOut := runCmd(args...)
+			if code != exitUsage || !strings.Contains(errOut, tt.want) {
+				t.Errorf("exit %d, want %d; stderr %q, want it to contain %q\n%s", code, exitUsage, errOut, tt.want, out)
+			}
+		})
+	}
+	code, _, errOut := runCmd("explain", "--tracker", "''", "--run", "0", "--step", "0",
+		filepath.Join("..", "..", "scenarios", "warmup-rail-carts.yaml"))
+	if code != exitUsage || !strings.Contains(errOut, "first word names a program") {
+		t.Errorf("explain with an empty program: exit %d, stderr %q", code, errOut)
 	}
 }

@@ -25,7 +25,7 @@ func runExplain(args []string, stdout, stderr io.Writer) int {
 	trackerLine := fs.String("tracker", "", "also run this tracker (a command line split like a shell would) and show where it departs")
 	configFile := fs.String("config", config.FileName, "the project file (tolerances, ambiguity threshold); a missing file means the defaults")
 	profile := fs.String("profile", "", "tolerance profile instead of the project's")
-	cutoff := fs.Float64("cutoff", runner.DefaultCutoff, "track pairing cut-off, metres")
+	cutoff := fs.Float64("cutoff", 0, fmt.Sprintf("track pairing cut-off, metres (0: metrics.cutoff of the project file, else %g)", runner.DefaultCutoff))
 	files, code, ok := parseWithArgs(fs, args)
 	if !ok {
 		return code
@@ -33,6 +33,9 @@ func runExplain(args []string, stdout, stderr io.Writer) int {
 	fail := func(format string, a ...any) int {
 		fmt.Fprintf(stderr, "trackgate explain: "+format+"\n", a...)
 		return exitUsage
+	}
+	if *cutoff < 0 {
+		return fail("--cutoff: expected a positive number of metres (or 0 for the project's), got %g", *cutoff)
 	}
 	if len(files) != 1 {
 		return fail("expected one scenario file, got %d", len(files))
@@ -45,8 +48,11 @@ func runExplain(args []string, stdout, stderr io.Writer) int {
 	o.Config, o.Profile, o.Cutoff, o.Workers = cfg, *profile, *cutoff, 1
 	if *trackerLine != "" {
 		argv, err := runner.SplitCommand(*trackerLine)
-		if err != nil || len(argv) == 0 {
-			return fail("--tracker: expected a command line (%v)", err)
+		if err != nil {
+			return fail("--tracker: %v", err)
+		}
+		if len(argv) == 0 || argv[0] == "" {
+			return fail("--tracker: expected a command line whose first word names a program, got %q", *trackerLine)
 		}
 		o.Tracker = argv
 	}

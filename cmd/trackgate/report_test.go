@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/xml"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -156,5 +157,36 @@ func TestExitCodes(t *testing.T) {
 	}
 	if got := runner.ExitCode(result.Worst(result.Error, result.Faulted)); got != exitTracker {
 		t.Errorf("a fault beside an error exits %d, want %d", got, exitTracker)
+	}
+}
+
+// TestReportMarkdownLimitTooSmall: a -limit that cannot hold the summary's
+// title line is an error (exit 2) that names the smallest limit, not an
+// empty file; that limit works.
+func TestReportMarkdownLimitTooSmall(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "r.json")
+	if err := result.Write(in, sample.Suite()); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "r.md")
+	var stdout, stderr bytes.Buffer
+	code := run([]string{"report", in, "-format", "markdown", "-limit", "1", "-o", out}, &stdout, &stderr)
+	if code != exitUsage || !strings.Contains(stderr.String(), "cannot hold the summary's title line") {
+		t.Fatalf("exit %d, stderr %q", code, stderr.String())
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("a file was written: %v", err)
+	}
+	var need int
+	msg := stderr.String()
+	if _, err := fmt.Sscanf(msg[strings.LastIndex(msg, "at least ")+len("at least "):], "%d", &need); err != nil {
+		t.Fatalf("no smallest limit in %q", msg)
+	}
+	stderr.Reset()
+	code = run([]string{"report", in, "-format", "markdown", "-limit", fmt.Sprint(need), "-o", out}, &stdout, &stderr)
+	data, err := os.ReadFile(out)
+	if code != runner.ExitCode(sample.Suite().Status) || err != nil || len(data) == 0 || len(data) > need {
+		t.Errorf("limit %d: exit %d, %d bytes written (%v); stderr %q", need, code, len(data), err, stderr.String())
 	}
 }

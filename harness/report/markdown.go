@@ -24,7 +24,8 @@ type MarkdownOptions struct {
 const DefaultMarkdownLimit = 60000
 
 // Markdown writes a GitHub-flavoured Markdown summary of s to w (see the
-// package documentation).
+// package documentation). It writes nothing and returns an error when
+// opt.Limit cannot hold even the summary's title line.
 func Markdown(w io.Writer, s *result.Suite, opt MarkdownOptions) error {
 	limit := opt.Limit
 	if limit <= 0 {
@@ -107,13 +108,18 @@ func Markdown(w io.Writer, s *result.Suite, opt MarkdownOptions) error {
 		note := fmt.Sprintf("\n_Cut to %d bytes._\n", limit)
 		keep := max(0, limit-len(note))
 		cut := strings.LastIndexByte(text[:keep], '\n')
-		if cut < 0 {
-			cut = 0
+		if cut <= 0 {
+			// Not even the title line fits: say so rather than write
+			// nothing.
+			// The note names the limit, so its length depends on it.
+			title := strings.IndexByte(text, '\n') + 1
+			need := title + len(note)
+			for title+len(fmt.Sprintf("\n_Cut to %d bytes._\n", need)) > need {
+				need = title + len(fmt.Sprintf("\n_Cut to %d bytes._\n", need))
+			}
+			return fmt.Errorf("markdown: a limit of %d bytes cannot hold the summary's title line and the cut note; give at least %d", limit, need)
 		}
 		text = strings.ToValidUTF8(text[:cut], "") + note
-		if len(text) > limit {
-			text = text[:0]
-		}
 	}
 	_, err := io.WriteString(w, text)
 	return err

@@ -352,6 +352,23 @@ func (s *settings) judge(j *job) {
 		r.Checks = append(r.Checks, result.Check{Name: "tracker", Status: result.Faulted, Message: msg,
 			First: &result.Divergence{Step: f.Step, Kind: "fault", Message: msg}})
 	}
+	if n == 0 && len(j.run.Scans) > 0 {
+		// The tracker answered no scan: the checks of its output compared
+		// nothing, and a pass would say they had.
+		why := "the tracker answered no scan"
+		if f := j.res.Fault; f != nil {
+			why += fmt.Sprintf(" before it faulted at step %d", f.Step)
+		}
+		for i := range r.Checks {
+			c := &r.Checks[i]
+			switch c.Name {
+			case "reference", "conformance", "identity":
+				if c.Status == result.Pass {
+					c.Status, c.Message = result.Skip, "nothing compared: "+why
+				}
+			}
+		}
+	}
 	r.Status = result.Pass
 	for _, c := range r.Checks {
 		r.Status = result.Worst(r.Status, c.Status)

@@ -12,6 +12,7 @@ import (
 	"trackgate/harness/config"
 	"trackgate/harness/driver"
 	"trackgate/harness/golden"
+	"trackgate/harness/result"
 	"trackgate/harness/shard"
 )
 
@@ -41,6 +42,12 @@ const (
 	DefaultOrder = 2.0
 	// DefaultMaxDiffs caps the differences kept per check.
 	DefaultMaxDiffs = 20
+	// MaxRuns bounds Options.Runs (--runs): ten times the runs a scenario
+	// file may ask for (scenario.MaxRuns). Every run planned keeps its
+	// result until the suite is assembled, so the bound keeps a mistyped
+	// count from exhausting memory; a result file holds no scenario with
+	// more runs (result.MaxRunsPlanned).
+	MaxRuns = result.MaxRunsPlanned
 )
 
 // Options configure Check, Bless and Explain. The zero value of every field
@@ -59,7 +66,8 @@ type Options struct {
 	Scenarios []string
 	// Against is what to compare with; "" means AgainstBoth.
 	Against Against
-	// Runs, when positive, replaces every scenario's run count.
+	// Runs, when positive, replaces every scenario's run count; at most
+	// MaxRuns.
 	Runs int
 	// Shard selects a share of the (scenario, run) pairs; the zero value
 	// means every pair.
@@ -174,6 +182,9 @@ func resolve(o Options, needTracker bool) (*settings, error) {
 	if needTracker && len(s.argv) == 0 && o.Local == nil {
 		return nil, fmt.Errorf("no tracker: give a tracker command or set tracker.command in %s", config.FileName)
 	}
+	if len(s.argv) > 0 && s.argv[0] == "" {
+		return nil, fmt.Errorf("tracker command %q: expected a program name as the first word, got an empty word", s.argv)
+	}
 	s.name = o.TrackerName
 	if s.name == "" {
 		s.name = s.cfg.Tracker.Name
@@ -214,8 +225,8 @@ func resolve(o Options, needTracker bool) (*settings, error) {
 	if s.gRuns < 0 {
 		return nil, fmt.Errorf("golden runs: expected a positive number, got %d", o.GoldenRuns)
 	}
-	if o.Runs < 0 {
-		return nil, fmt.Errorf("runs: expected a positive number, got %d", o.Runs)
+	if o.Runs < 0 || o.Runs > MaxRuns {
+		return nil, fmt.Errorf("runs: expected a number of runs from 1 to %d (or 0 for each scenario's own), got %d", MaxRuns, o.Runs)
 	}
 	if o.K < 0 {
 		return nil, fmt.Errorf("k: expected a positive number of hypotheses, got %d", o.K)

@@ -18,7 +18,8 @@ import (
 // run to the next when it is started as a tracker by the tests: it serves
 // the reference until it has started three runs, and from its fourth run
 // on moves the first mean component of every track by 5 m. Its verdicts
-// therefore say which runs shared a tracker process.
+// therefore say which runs shared a tracker process. With the value
+// "crash-at-0" it exits at the first scan of every run instead.
 const leakEnv = "TRACKGATE_RUNNER_LEAK"
 
 func init() {
@@ -30,12 +31,17 @@ func init() {
 
 func serveLeak() int {
 	ready := protocol.Ready{Name: "leaky", Version: "1", Covariance: true, Association: true, ManyRuns: true}
+	crash := os.Getenv(leakEnv) == "crash-at-0"
 	started := 0
 	err := protocol.Serve(os.Stdin, os.Stdout, ready, func(s protocol.Start) (protocol.StepFunc, error) {
 		started++
 		stale := started > 3
 		ref := tracker.New(tracker.Config{Model: s.Model, Objects: s.Objects})
 		return func(scan mot.Scan) (mot.Frame, error) {
+			if crash {
+				fmt.Fprintln(os.Stderr, "leaky: giving up at the first scan")
+				os.Exit(7)
+			}
 			f, _, err := ref.Step(scan)
 			if err != nil || !stale {
 				return f, err
@@ -111,5 +117,36 @@ func TestLeakyTrackerJudgedAlikeForAnyWorkersAndProgress(t *testing.T) {
 		if !bytes.Equal(data, first) {
 			t.Errorf("%s: result differs from j1's", tc.name)
 		}
+	}
+}
+
+// TestFaultAtFirstScanComparesNothing: a tracker that faults before its
+// first reply gets no passing check of its output: the reference and
+// identity checks say they compared nothing (skip), the run and the suite
+// are a fault, exit 3.
+func TestFaultAtFirstScanComparesNothing(t *testing.T) {
+	o := variantOptions("reference", "testdata/quay-pallets-and-forklift.yaml")
+	o.Config.Tracker.Env = map[string]string{leakEnv: "crash-at-0", "GORACE": "atexit_sleep_ms=0"}
+	o.Against = AgainstReference
+	s, err := Check(context.Background(), o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := s.Scenarios[0].Runs[0]
+	if r.Status != result.Faulted || s.Status != result.Faulted || ExitCode(s.Status) != 3 {
+		t.Fatalf("run %s, suite %s, exit %d; want fault and 3", r.Status, s.Status, ExitCode(s.Status))
+	}
+	seen := map[string]bool{}
+	for _, c := range r.Checks {
+		seen[c.Name] = true
+		switch c.Name {
+		case "reference", "identity", "conformance":
+			if c.Status != result.Skip || c.Message != "nothing compared: the tracker answered no scan before it faulted at step 0" {
+				t.Errorf("%s check: %s %q, want skip saying nothing was compared", c.Name, c.Status, c.Message)
+			}
+		}
+	}
+	if !seen["reference"] || !seen["tracker"] {
+		t.Errorf("checks %v, want a reference and a tracker check", seen)
 	}
 }
