@@ -590,7 +590,7 @@ func (s *settings) blessValues(sc *scen, kept map[*job]map[string]float64) (*run
 	h.Tracker = s.name
 	now := map[int]golden.RunValue{}
 	for _, j := range sc.jobs {
-		if j.refErr != nil || j.res.Fault != nil || j.score == nil {
+		if j.refErr != nil || j.res.Fault != nil || j.score == nil || j.index >= sc.spec.Runs {
 			continue
 		}
 		if h.Protocol == 0 {
@@ -745,10 +745,10 @@ func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 			rep.Problems = append(rep.Problems, fmt.Sprintf("scenario %s: %v", sc.file, sc.err))
 		}
 	}
-	// Every run is run: the tracker's whole-run values are blessed for
-	// all of them (the run values golden), the other goldens for the
-	// first G.
-	jobs := s.plan(scens, func(sc *scen, r int) bool { return s.Shard.Holds(sc.spec.Name, r) })
+	// Every run of the scenario file is run (a --runs override adds none):
+	// the tracker's whole-run values are blessed for all of them (the run
+	// values golden), the other goldens for the first G.
+	jobs := s.plan(scens, func(sc *scen, r int) bool { return r < sc.spec.Runs && s.Shard.Holds(sc.spec.Name, r) })
 	s.parallel(len(jobs), func(i int) { s.prepareJob(jobs[i]) })
 	s.drive(ctx, jobs)
 	arts := make([][]*artefact, len(jobs))

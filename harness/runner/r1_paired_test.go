@@ -13,6 +13,7 @@ import (
 	"trackgate/harness/mot"
 	"trackgate/harness/protocol"
 	"trackgate/harness/result"
+	"trackgate/harness/shard"
 	"trackgate/reference/tracker"
 )
 
@@ -143,5 +144,57 @@ func TestStaleRunValuesIsAnError(t *testing.T) {
 	g := goldenCheck(t, s)
 	if g.Status != result.Error || !strings.Contains(g.Message, "stale golden "+vp) {
 		t.Fatalf("golden check %s: %s; want an error naming the stale run values", g.Status, g.Message)
+	}
+}
+
+// TestRunValuesShardsAndRunsOverride: blessing shard by shard fills one
+// run values golden (each shard keeps the other's records), and a --runs
+// override adds no runs beyond the scenario file's own.
+func TestRunValuesShardsAndRunsOverride(t *testing.T) {
+	root := t.TempDir()
+	vp := filepath.Join(root, "warmup-rail-carts", "rail-tracker", "metrics.jsonl")
+	bless := func(o Options) {
+		t.Helper()
+		o.Scenarios = []string{scenarioFile("warmup-rail-carts")}
+		o.Workers = 2
+		o.Getenv = func(string) string { return "" }
+		o.GoldenDir, o.TrackerName, o.GoldenRuns = root, "rail-tracker", 2
+		o.Local = offsetTracker(0, 0)
+		rep, err := Bless(context.Background(), BlessOptions{Options: o})
+		if err != nil || len(rep.Problems) > 0 {
+			t.Fatalf("bless: %v %v", err, rep.Problems)
+		}
+	}
+	runsOf := func() []int {
+		t.Helper()
+		f, err := golden.ReadFile(vp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var out []int
+		for _, r := range f.Runs {
+			out = append(out, r.Run)
+		}
+		return out
+	}
+	var o Options
+	o.Shard = shard.Spec{Index: 0, Total: 2}
+	bless(o)
+	first := runsOf()
+	if len(first) == 0 || len(first) == 5 {
+		t.Fatalf("shard 0 of 2 blessed runs %v, want some of the 5", first)
+	}
+	o.Shard = shard.Spec{Index: 1, Total: 2}
+	bless(o)
+	if got := runsOf(); !slices.Equal(got, []int{0, 1, 2, 3, 4}) {
+		t.Fatalf("after both shards the run values hold runs %v, want 0–4", got)
+	}
+	if err := os.Remove(vp); err != nil {
+		t.Fatal(err)
+	}
+	o = Options{Runs: 8}
+	bless(o)
+	if got := runsOf(); !slices.Equal(got, []int{0, 1, 2, 3, 4}) {
+		t.Fatalf("with --runs 8 the run values hold runs %v, want the file's 0–4", got)
 	}
 }
