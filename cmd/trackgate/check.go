@@ -30,7 +30,8 @@ func init() {
 	})
 }
 
-// checkHelp is printed after the flags by 'check -h'.
+// checkHelp is printed after the flags by 'check -h', with
+// runner.RunsPerProcess and runner.MaxRuns filled in.
 const checkHelp = `
 The tracker is the --tracker command line, split into words as a POSIX shell
 would (blanks separate words; single quotes keep everything literal; inside
@@ -47,9 +48,16 @@ results are compared or cached. On a terminal a progress line (runs done of
 all, elapsed time) is kept on standard error while the tracker runs; it is
 never part of any report, and --quiet turns it off.
 
-Exit codes: 0 pass (ties allowed); 1 a regression was found; 2 bad usage,
-configuration or scenario, or a stale golden; 3 the tracker itself faulted
-(a fault outranks a regression).
+A tracker that says it can serve many runs (many_runs) gets a process of
+its own for each chunk of %d consecutive runs of a scenario, whatever -j
+and whether progress is shown, so a tracker that carries state from one
+run to the next is judged the same way every time.
+
+Exit codes: 0 pass (ties allowed); 1 a regression was found; 2 bad usage
+or configuration (nothing ran), or, with no tracker fault, a scenario that
+does not load, a stale golden or a check trackgate could not make; 3 the
+tracker itself faulted on some run (a fault outranks a regression and an
+error). --runs is at most %d.
 `
 
 // commonFlags are the flags check and bless share.
@@ -147,7 +155,7 @@ func runCheck(args []string, stdout, stderr io.Writer) int {
 	c := commands["check"]
 	fs := newFlags(c, stderr)
 	usage := fs.Usage
-	fs.Usage = func() { usage(); fmt.Fprint(stderr, checkHelp) }
+	fs.Usage = func() { usage(); fmt.Fprintf(stderr, checkHelp, runner.RunsPerProcess, runner.MaxRuns) }
 	f := addCommon(fs, true)
 	jsonOut := fs.String("json", "", "write the result as JSON to this file")
 	junitOut := fs.String("junit", "", "write a JUnit XML report to this file")
