@@ -1,6 +1,7 @@
 // Package golden reads and writes the blessed files that trackgate compares
 // runs against: scan tapes, reference tracker output, tracker output and
-// metrics, one JSON object per line behind a provenance header.
+// metrics, and a tracker's whole-run values of every run of a scenario
+// (run values), one JSON object per line behind a provenance header.
 //
 // # Format
 //
