@@ -45,11 +45,10 @@ type artefact struct {
 // pairTracker judges the tracker's metrics golden together with its
 // output golden, since both are blessed as one unit: when the output
 // differs (or has no fresh golden), a metrics difference is part of the
-// failure; when the output
-// agrees but the run legitimately parts from it after a tied association,
-// the metrics are not compared; when the output agrees and nothing parts,
-// a metrics difference means the metrics golden is stale or was not
-// blessed with the output, an error.
+// failure; when the output agrees but the run legitimately parts from it
+// after a tied association, the metrics are not compared; when the output
+// agrees and nothing parts, a metrics difference means the metrics golden
+// is stale or was not blessed with the output, an error.
 func pairTracker(j *job, arts []*artefact) {
 	out, met := trackerPair(arts)
 	if met == nil || met.status != golden.Failing {
