@@ -126,3 +126,28 @@ func FuzzReadRunValues(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkReadRunValues reads a run values file of 1000 runs with eight
+// values each, what a check reads once per run of such a scenario.
+func BenchmarkReadRunValues(b *testing.B) {
+	f := runValuesFile()
+	f.Runs = nil
+	for r := range 1000 {
+		v := map[string]float64{}
+		for i, n := range []string{"false_tracks", "id_switches", "mean_gospa", "mean_nees", "missed_objects", "nees_in_band", "position_rmse", "track_breaks"} {
+			v[n] = float64(r*8+i) / 7
+		}
+		f.Runs = append(f.Runs, RunValue{Run: r, Seed: uint64(9000 + r), Values: v})
+	}
+	data, err := Marshal(f)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	b.SetBytes(int64(len(data)))
+	for b.Loop() {
+		if _, err := Read(bytes.NewReader(data), "metrics.jsonl"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

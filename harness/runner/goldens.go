@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"sync"
 
 	"trackgate/harness/compare"
 	"trackgate/harness/golden"
@@ -543,7 +544,11 @@ func (s *settings) blessedRun(j *job) (map[string]float64, golden.Status, string
 	if err != nil {
 		return nil, golden.Outdated, err.Error()
 	}
-	f, fr, err := golden.ReadFresh(p, j.sc.spec.Name, j.sc.spec.Hash)
+	f, err := readValues(p)
+	fr := golden.Fresh
+	if err == nil {
+		fr = f.Header.Check(j.sc.spec.Name, j.sc.spec.Hash)
+	}
 	switch {
 	case errors.Is(err, fs.ErrNotExist):
 		return nil, golden.Missing, fmt.Sprintf("no golden tracker run values at %s", p)
@@ -562,6 +567,48 @@ func (s *settings) blessedRun(j *job) (map[string]float64, golden.Status, string
 		return r.Values, golden.Passing, p
 	}
 	return nil, golden.Missing, fmt.Sprintf("the golden %s has no values for run %d", p, j.index)
+}
+
+// valuesCache keeps the run values goldens read lately, so that a check
+// reads a scenario's file once rather than once per run (a file of 1000
+// runs takes milliseconds to parse). An entry is used only while the file
+// on disk is the same file (goldens are replaced by rename) with the same
+// size and modification time.
+var valuesCache struct {
+	sync.Mutex
+	m map[string]cachedValues
+}
+
+type cachedValues struct {
+	info fs.FileInfo
+	file golden.File
+	err  error
+}
+
+// maxCachedValues bounds valuesCache; it is emptied when full.
+const maxCachedValues = 64
+
+// readValues reads the run values golden at path through valuesCache. The
+// file returned is shared: callers must not modify it.
+func readValues(path string) (golden.File, error) {
+	info, err := os.Stat(path)
+	if err != nil {
+		return golden.File{}, err
+	}
+	valuesCache.Lock()
+	c, ok := valuesCache.m[path]
+	valuesCache.Unlock()
+	if ok && os.SameFile(c.info, info) && c.info.Size() == info.Size() && c.info.ModTime().Equal(info.ModTime()) {
+		return c.file, c.err
+	}
+	f, err := golden.ReadFile(path)
+	valuesCache.Lock()
+	if valuesCache.m == nil || len(valuesCache.m) >= maxCachedValues {
+		valuesCache.m = map[string]cachedValues{}
+	}
+	valuesCache.m[path] = cachedValues{info: info, file: f, err: err}
+	valuesCache.Unlock()
+	return f, err
 }
 
 // runValues is what Bless would write to a scenario's run values golden

@@ -198,3 +198,26 @@ func TestRunValuesShardsAndRunsOverride(t *testing.T) {
 		t.Fatalf("with --runs 8 the run values hold runs %v, want the file's 0–4", got)
 	}
 }
+
+// TestRunValuesCacheSeesRewrite: a run values golden replaced on disk
+// (bless writes by rename) is read again, not served from the cache.
+func TestRunValuesCacheSeesRewrite(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "metrics.jsonl")
+	h := golden.NewHeader(golden.RunValues, "canal-lock-barges", "77aa", 0, 0, 1)
+	h.Tracker = "lock-keeper"
+	for _, v := range []float64{1.5, 2.5} {
+		f := golden.File{Header: h, Runs: []golden.RunValue{{Run: 0, Seed: 3, Values: map[string]float64{MetricMeanGOSPA: v}}}}
+		if err := golden.Write(p, f); err != nil {
+			t.Fatal(err)
+		}
+		for range 2 { // the second read comes from the cache
+			g, err := readValues(p)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := g.Runs[0].Values[MetricMeanGOSPA]; got != v {
+				t.Fatalf("read %g after writing %g", got, v)
+			}
+		}
+	}
+}
