@@ -770,8 +770,11 @@ func (r *BlessReport) ExitCode() int {
 	return 0
 }
 
-// Bless runs the tracker and the reference on the first G runs of every
-// scenario and records their goldens (see the package documentation).
+// Bless runs the tracker and the reference on every run of every scenario
+// file and records their goldens: the tape, reference and tracker goldens
+// of the first G runs, and the tracker's run values golden of all runs
+// (see the package documentation). The tracker's output, metrics and run
+// values are rewritten together when one of them must be.
 func Bless(ctx context.Context, o BlessOptions) (*BlessReport, error) {
 	s, err := resolve(o.Options, true)
 	if err != nil {
