@@ -11,8 +11,11 @@ Usage:
 
 Run 'trackgate help <command>' for the flags of one command.
 
-Exit codes, shared by every command: 0 everything passed; 1 a regression was
-found; 2 bad usage, configuration or scenario; 3 the tracker itself faulted.
+Exit codes, shared by every command: 0 everything passed (ties allowed); 1 a
+regression was found; 2 bad usage or configuration (nothing ran), or, with no
+tracker fault, a scenario that does not load, a stale golden or a check
+trackgate could not make; 3 the tracker itself faulted on some run, which
+outranks a regression and an error.
 
 Scenarios:
 
@@ -52,8 +55,11 @@ and writes --json, --junit, --markdown and --html files. Its exit codes:
 0 pass, ties allowed (a changed association where the reference's margin is
 within tie_margin); 1 a regression; 2 bad usage, configuration or scenario,
 or a stale golden (its scenario file changed since it was blessed); 3 the
-tracker faulted, which outranks a regression. With CI=true or --ci nothing
-is written into the golden folder and a missing golden fails.
+tracker faulted on some run, which outranks a regression and an error. A
+tracker that serves many runs gets a process of its own for each chunk of 16
+consecutive runs of a scenario, whatever -j; --runs is at most 100000. With
+CI=true or --ci nothing is written into the golden folder and a missing
+golden fails.
 
 bless records the goldens of the first runs of each scenario, rewriting only
 those outside their tolerance unless --all is given. explain shows one step
@@ -69,7 +75,8 @@ Reports and large suites:
 report redraws a saved result in any format. --shard runs a stable share of
 the (scenario, run) pairs, with the numbering base of the first shard always
 stated; merge joins the shards' results into the result of the whole suite,
-judging the gates again, and checks that every run ran exactly once.
+judging again the gates the shards recorded (--config FILE replaces them),
+and checks that every run ran exactly once.
 
 First steps:
 
