@@ -185,7 +185,7 @@
 // # Statuses and exit codes
 //
 // A run takes the worst status of its checks (result.Worst); a fault of the
-// tracker makes it "fault", which outranks a regression. ExitCode maps a
+// tracker makes it "fault", which outranks a regression and an error. ExitCode maps a
 // suite status to the command's exit code: 0 pass or tie, 1 regression,
 // 2 error (bad scenario, stale golden, harness failure), 3 tracker fault.
 //

@@ -45,8 +45,8 @@ func TestProgressLine(t *testing.T) {
 	}
 }
 
-// TestProgressAndTimingLeaveResultsAlone: reporting progress (which hands
-// runs to the driver a few at a time) gives the same bytes as not; every
+// TestProgressAndTimingLeaveResultsAlone: reporting progress (which counts
+// runs as their chunks of runs finish) gives the same bytes as not; every
 // run is counted once; Timing fills Seconds and nothing else.
 func TestProgressAndTimingLeaveResultsAlone(t *testing.T) {
 	files := []string{scenarioFile("tie-mirror-pair"), scenarioFile("warmup-rail-carts")}
