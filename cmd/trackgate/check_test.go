@@ -114,7 +114,7 @@ func TestCheckAndBlessCommands(t *testing.T) {
 	t.Setenv("CI", "")
 	cfg, _ := gateProject(t, "tie-mirror-pair", "warmup-rail-carts")
 	code, out, errOut := runCmd("bless", "--config", cfg, "--golden-runs", "2")
-	if code != exitPass || !strings.Contains(out, "0 written, 15 new, 0 unchanged") {
+	if code != exitPass || !strings.Contains(out, "0 written, 17 new, 0 unchanged") {
 		t.Fatalf("bless: exit %d\n%s%s", code, out, errOut)
 	}
 	dir := t.TempDir()

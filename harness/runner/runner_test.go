@@ -286,12 +286,13 @@ func TestBlessThenCheck(t *testing.T) {
 	root := t.TempDir()
 	files := []string{scenarioFile("tie-mirror-pair"), scenarioFile("warmup-rail-carts")}
 	rep := blessInto(t, root, false, nil, files...)
-	// tie-mirror-pair has 1 run, warmup-rail-carts 2 golden runs; 5 files each.
-	if len(rep.New) != 15 || len(rep.Written)+len(rep.Unchanged)+len(rep.Refused) != 0 || rep.ExitCode() != 0 {
+	// tie-mirror-pair has 1 run, warmup-rail-carts 2 golden runs; 5 files
+	// each, and one file of every run's whole-run values per scenario.
+	if len(rep.New) != 17 || len(rep.Written)+len(rep.Unchanged)+len(rep.Refused) != 0 || rep.ExitCode() != 0 {
 		t.Fatalf("first bless: new %d written %d unchanged %d refused %d problems %v", len(rep.New), len(rep.Written), len(rep.Unchanged), len(rep.Refused), rep.Problems)
 	}
 	rep = blessInto(t, root, false, nil, files...)
-	if len(rep.Unchanged) != 15 || len(rep.New)+len(rep.Written) != 0 {
+	if len(rep.Unchanged) != 17 || len(rep.New)+len(rep.Written) != 0 {
 		t.Fatalf("second bless: new %d written %d unchanged %d", len(rep.New), len(rep.Written), len(rep.Unchanged))
 	}
 	o := variantOptions("relabel", files...)
@@ -330,7 +331,7 @@ func TestBlessThenCheck(t *testing.T) {
 	}
 	rep = blessInto(t, root, false, nil, files...)
 	rel := filepath.Join("warmup-rail-carts", "harbour-tracker", "run-1.jsonl")
-	if len(rep.Written) != 1 || rep.Written[0] != rel || len(rep.Unchanged) != 14 {
+	if len(rep.Written) != 1 || rep.Written[0] != rel || len(rep.Unchanged) != 16 {
 		t.Fatalf("bless after the change: written %v, unchanged %d, want only %s", rep.Written, len(rep.Unchanged), rel)
 	}
 }
