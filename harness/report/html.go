@@ -550,7 +550,75 @@ type series struct {
 	ys           []float64
 }
 
-func seriesPlot(label, ytitle string, ss []series, band *[2]float64, bandLabel string, m marks) template.HTML {
+// band is an acceptance band behind a series plot: either one pair of
+// bounds for every step (lo and hi of length 1, drawn as a rectangle
+// across the plot) or bounds step by step (lo[k], hi[k] for step k, drawn
+// as a stepped polygon: each step's bounds hold from k−½ to k+½, clipped
+// to the plot). Steps whose bounds are not finite, or whose lower bound
+// is not below the upper, are gaps in the polygon.
+type band struct {
+	lo, hi []float64
+	label  string
+}
+
+// stepped reports whether b has bounds by step.
+func (b *band) stepped() bool { return len(b.lo) > 1 || len(b.hi) > 1 }
+
+// usable reports whether the bounds of step k can be drawn.
+func (b *band) usable(k int) bool {
+	return k < len(b.lo) && k < len(b.hi) && finite(b.lo[k], b.hi[k]) && b.lo[k] < b.hi[k]
+}
+
+// path returns the SVG path data of a stepped band in frame f: one closed
+// polygon per run of consecutive usable steps, its upper edge left to
+// right and its lower edge back.
+func (b *band) path(f *frame) string {
+	var d strings.Builder
+	n := min(len(b.lo), len(b.hi))
+	x := func(v float64) float64 { return f.px(math.Max(f.x0, math.Min(f.x1, v))) }
+	for k := 0; k < n; {
+		if !b.usable(k) {
+			k++
+			continue
+		}
+		end := k
+		for end+1 < n && b.usable(end+1) {
+			end++
+		}
+		if d.Len() > 0 {
+			d.WriteByte(' ')
+		}
+		// Each edge moves vertically only where its pixel height changes,
+		// and horizontally to the end of a run of equal heights.
+		y := f1(f.py(b.hi[k]))
+		fmt.Fprintf(&d, "M%s %s", f1(x(float64(k)-0.5)), y)
+		for j := k; j <= end; j++ {
+			if j == end || f1(f.py(b.hi[j+1])) != y {
+				fmt.Fprintf(&d, " H%s", f1(x(float64(j)+0.5)))
+				if j < end {
+					y = f1(f.py(b.hi[j+1]))
+					fmt.Fprintf(&d, " V%s", y)
+				}
+			}
+		}
+		y = f1(f.py(b.lo[end]))
+		fmt.Fprintf(&d, " V%s", y)
+		for j := end; j >= k; j-- {
+			if j == k || f1(f.py(b.lo[j-1])) != y {
+				fmt.Fprintf(&d, " H%s", f1(x(float64(j)-0.5)))
+				if j > k {
+					y = f1(f.py(b.lo[j-1]))
+					fmt.Fprintf(&d, " V%s", y)
+				}
+			}
+		}
+		d.WriteString(" Z")
+		k = end + 1
+	}
+	return d.String()
+}
+
+func seriesPlot(label, ytitle string, ss []series, bd *band, m marks) template.HTML {
 	s := &svg{}
 	open(s, plotW, seriesH, label)
 	var b bounds
@@ -560,17 +628,32 @@ func seriesPlot(label, ytitle string, ss []series, band *[2]float64, bandLabel s
 			b.add(float64(k), y)
 		}
 	}
-	if band != nil {
-		b.add(0, band[0])
-		b.add(0, band[1])
+	if bd != nil {
+		drawable := false
+		for k := range bd.lo {
+			if bd.usable(k) {
+				b.add(0, bd.lo[k])
+				b.add(0, bd.hi[k])
+				drawable = true
+			}
+		}
+		if !drawable {
+			bd = nil
+		}
 	}
 	if b.x1 == 0 {
 		b.x1 = 1
 	}
 	f := newFrame(padL, padT, plotW-padL-padR, seriesH-padT-padB, b.x0, b.x1, b.y0, b.y1, false)
 	s.axes(f, "step", ytitle)
-	if band != nil {
-		s.add(`<rect class="band" x="%s" y="%s" width="%s" height="%s"><title>%s</title></rect>`, f1(f.left), f1(f.py(band[1])), f1(f.width), f1(f.py(band[0])-f.py(band[1])), esc(bandLabel))
+	switch {
+	case bd == nil:
+	case bd.stepped():
+		if d := bd.path(f); d != "" {
+			s.add(`<path class="band" d="%s"><title>%s</title></path>`, d, esc(bd.label+" for each step's number of values"))
+		}
+	default:
+		s.add(`<rect class="band" x="%s" y="%s" width="%s" height="%s"><title>%s</title></rect>`, f1(f.left), f1(f.py(bd.hi[0])), f1(f.width), f1(f.py(bd.lo[0])-f.py(bd.hi[0])), esc(bd.label))
 	}
 	stepMarks(s, f, m)
 	var items []legendItem
@@ -584,8 +667,8 @@ func seriesPlot(label, ytitle string, ss []series, band *[2]float64, bandLabel s
 		s.polyline(sr.class, sr.label, xs, ys)
 		items = append(items, legendItem{sr.class, sr.label, "line"})
 	}
-	if band != nil {
-		items = append(items, legendItem{"band", bandLabel, "band"})
+	if bd != nil {
+		items = append(items, legendItem{"band", bd.label, "band"})
 	}
 	s.legend(plotW-padR+14, padT+10, items)
 	s.add(`</svg>`)
@@ -603,18 +686,29 @@ func gospaPlot(sc *result.Scenario, r *result.Run, m marks) template.HTML {
 	if len(ss) == 0 {
 		return ""
 	}
-	return seriesPlot("GOSPA over time", "GOSPA (m)", ss, nil, "", m)
+	return seriesPlot("GOSPA over time", "GOSPA (m)", ss, nil, m)
 }
 
+// neesPlot draws the run's NEES and the scenario's average NEES with its
+// acceptance band: the band of each step's own number of values when the
+// summary has it (NEESLowByStep, NEESHighByStep as long as NEES), else
+// the single band NEESLow..NEESHigh, else none.
 func neesPlot(sc *result.Scenario, r *result.Run) template.HTML {
 	var ss []series
-	var band *[2]float64
-	label := ""
+	var bd *band
 	if mt := sc.Metrics; mt != nil && len(mt.NEES) > 0 {
 		ss = append(ss, series{"avg", fmt.Sprintf("average of %d runs", mt.Runs), mt.NEES})
-		if mt.NEESHigh > mt.NEESLow {
-			band = &[2]float64{mt.NEESLow, mt.NEESHigh}
-			label = fmt.Sprintf("%s%% band", num(100*mt.NEESConfidence))
+		label := "acceptance band"
+		if c := mt.NEESConfidence; c > 0 && c < 1 {
+			label = fmt.Sprintf("%s%% band", num(100*c))
+		}
+		switch {
+		case len(mt.NEESLowByStep) == len(mt.NEES) && len(mt.NEESHighByStep) == len(mt.NEES):
+			// With one step, stepped() is false and the band is that
+			// step's rectangle.
+			bd = &band{lo: mt.NEESLowByStep, hi: mt.NEESHighByStep, label: label}
+		case mt.NEESHigh > mt.NEESLow:
+			bd = &band{lo: []float64{mt.NEESLow}, hi: []float64{mt.NEESHigh}, label: label}
 		}
 	}
 	if r.Metrics != nil && len(r.Metrics.NEES) > 0 {
@@ -623,5 +717,5 @@ func neesPlot(sc *result.Scenario, r *result.Run) template.HTML {
 	if len(ss) == 0 {
 		return ""
 	}
-	return seriesPlot("NEES over time", "NEES", ss, band, label, marks{first: -1})
+	return seriesPlot("NEES over time", "NEES", ss, bd, marks{first: -1})
 }

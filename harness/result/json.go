@@ -96,7 +96,9 @@ const (
 // between 1 and MaxStateDim when it has runs (0 is left for a scenario
 // that did not load), position components inside the state, runs_planned
 // between 0 and MaxRunsPlanned, run indices ≥ 0 and below runs_planned
-// when it is known; well-formed gate rules. Errors are fieldErrors, so
+// when it is known; per-step NEES bounds (nees_low_by_step,
+// nees_high_by_step) either both absent or both as long as nees;
+// well-formed gate rules. Errors are fieldErrors, so
 // that Unmarshal names the line and column.
 func validate(s *Suite) error {
 	if sh := s.Shard; sh != nil {
@@ -126,6 +128,14 @@ func validate(s *Suite) error {
 		}
 		if sc.RunsPlanned < 0 || sc.RunsPlanned > MaxRunsPlanned {
 			return fieldErr(p+".runs_planned", "expected 0 (unknown) to %d, got %d", MaxRunsPlanned, sc.RunsPlanned)
+		}
+		if m := sc.Metrics; m != nil && (len(m.NEESLowByStep) > 0 || len(m.NEESHighByStep) > 0) {
+			if len(m.NEESLowByStep) != len(m.NEES) {
+				return fieldErr(p+".metrics.nees_low_by_step", "expected one bound per step of nees (%d), got %d", len(m.NEES), len(m.NEESLowByStep))
+			}
+			if len(m.NEESHighByStep) != len(m.NEES) {
+				return fieldErr(p+".metrics.nees_high_by_step", "expected one bound per step of nees (%d), got %d", len(m.NEES), len(m.NEESHighByStep))
+			}
 		}
 		for k, r := range sc.Runs {
 			rp := fmt.Sprintf("%s.runs[%d]", p, k)

@@ -38,7 +38,9 @@ import (
 // These equal the whole-run values up to rounding when each part's values
 // are averages over its runs. The NEES band depends on the number of runs,
 // so NEESLow, NEESHigh, NEESConfidence and NEESInBand are kept only when
-// every part gives the same band, and dropped otherwise. Gates decided on
+// every part gives the same band, and dropped otherwise; the per-step
+// bounds (NEESLowByStep, NEESHighByStep) depend on each step's count,
+// which the parts' summaries do not carry, and are left out. Gates decided on
 // part of the runs cannot be combined: they are dropped, and a note in
 // Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
 // and gates again from the runs' own values (runner.Judge), which gives the
@@ -377,6 +379,8 @@ func cloneMetrics(m *Metrics) *Metrics {
 	c := *m
 	c.GOSPA = slices.Clone(m.GOSPA)
 	c.NEES = slices.Clone(m.NEES)
+	c.NEESLowByStep = slices.Clone(m.NEESLowByStep)
+	c.NEESHighByStep = slices.Clone(m.NEESHighByStep)
 	return &c
 }
 

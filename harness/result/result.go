@@ -338,6 +338,11 @@ type RunMetrics struct {
 	// in frame order; a step without one has an empty list. The
 	// scenario's consistency band is judged on these pooled over runs.
 	NEESSamples [][]float64 `json:"nees_samples,omitempty"`
+	// NEESSkipped counts the matched track estimates whose covariance is
+	// not positive definite: they are left out of NEES and NEESSamples
+	// (the other metrics count them as usual). Zero, and left out of the
+	// file, when there were none.
+	NEESSkipped int `json:"nees_skipped,omitempty"`
 }
 
 // Metrics summarises a scenario's metrics over its runs.
@@ -346,12 +351,26 @@ type Metrics struct {
 	// GOSPA is the per-step GOSPA averaged over runs.
 	GOSPA     []float64 `json:"gospa"`
 	MeanGOSPA float64   `json:"mean_gospa"`
-	// NEES is the per-step average NEES over runs, with its acceptance
-	// band [NEESLow, NEESHigh] at confidence NEESConfidence.
-	NEES           []float64 `json:"nees,omitempty"`
-	NEESLow        float64   `json:"nees_low,omitempty"`
-	NEESHigh       float64   `json:"nees_high,omitempty"`
-	NEESConfidence float64   `json:"nees_confidence,omitempty"`
+	// NEES is the per-step average NEES: at each step, the mean of the
+	// NEES values of every matched track with a covariance over all runs.
+	// Steps without such a value are left out, as in RunMetrics.
+	NEES []float64 `json:"nees,omitempty"`
+	// NEESLowByStep and NEESHighByStep are parallel to NEES: the bounds of
+	// the acceptance band of each average at confidence NEESConfidence,
+	// for that step's own number of values M_k (runs × matched tracks),
+	// [χ²_{n·M_k}⁻¹((1−c)/2), χ²_{n·M_k}⁻¹((1+c)/2)] / M_k with n the
+	// state dimension. Both are empty when no band was computed (no NEES,
+	// or a summary pooled from shards whose counts are not known); when
+	// present, both have the length of NEES.
+	NEESLowByStep  []float64 `json:"nees_low_by_step,omitempty"`
+	NEESHighByStep []float64 `json:"nees_high_by_step,omitempty"`
+	// NEESLow and NEESHigh are the single band [NEESLow, NEESHigh] shared
+	// by every step, set only when every step of NEES has the same count
+	// (then equal to every entry of NEESLowByStep and NEESHighByStep);
+	// both 0 otherwise. Kept for readers of earlier results.
+	NEESLow        float64 `json:"nees_low,omitempty"`
+	NEESHigh       float64 `json:"nees_high,omitempty"`
+	NEESConfidence float64 `json:"nees_confidence,omitempty"`
 	// NEESInBand is the fraction of steps whose average NEES lies in the band.
 	NEESInBand   float64 `json:"nees_in_band,omitempty"`
 	PositionRMSE float64 `json:"position_rmse"`

@@ -34,8 +34,11 @@ import (
 //	                 matched track that reports a covariance, over all
 //	                 runs), judged against the chi-square band of its own
 //	                 count, [χ²_{n·M_k}⁻¹((1−c)/2), χ²_{n·M_k}⁻¹((1+c)/2)] / M_k,
-//	                 c = 0.95; Metrics.NEESLow and NEESHigh hold that band
-//	                 when every judged step has the same M_k, else are 0.
+//	                 c = 0.95. Steps with M_k = 0 are left out of the
+//	                 series; Metrics.NEESLowByStep and NEESHighByStep hold
+//	                 each remaining step's band, parallel to Metrics.NEES,
+//	                 and Metrics.NEESLow and NEESHigh the single band when
+//	                 every such step has the same M_k (else both are 0).
 //
 // An absolute gate compares the mean of the runs' values with its limit;
 // a paired gate (metrics.Paired) compares the runs' values with a baseline
@@ -125,16 +128,20 @@ func summarise(sc *result.Scenario) *result.Metrics {
 	}
 	cons, err := metrics.CheckConsistency(nees, sc.StateDim, NEESConfidence)
 	if err == nil && cons.Judged > 0 {
+		// Each step's mean is judged against the band of its own sample
+		// count (runs × matched tracks at the step), stored step by step
+		// beside the means; steps without a sample are left out of all
+		// three series alike. One band is also stored when every judged
+		// step has the same count; otherwise no single band describes the
+		// steps and none is (nees_in_band still judges each step by its
+		// own).
 		for _, st := range cons.Steps {
 			if st.Count > 0 {
 				out.NEES = append(out.NEES, st.Mean)
+				out.NEESLowByStep = append(out.NEESLowByStep, st.Lo)
+				out.NEESHighByStep = append(out.NEESHighByStep, st.Hi)
 			}
 		}
-		// Each step's mean is judged against the band of its own sample
-		// count (runs × matched tracks at the step). One band is stored
-		// only when every judged step has the same count; otherwise no
-		// single band describes the steps and none is stored (nees_in_band
-		// still judges each step by its own).
 		count := -1
 		for _, st := range cons.Steps {
 			switch {

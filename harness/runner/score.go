@@ -171,6 +171,7 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 		MetricFalseTracks: float64(m.FalseTracks), MetricMissed: float64(m.MissedObjects),
 	}
 	rs.skipped, rs.firstSkip = skipped, firstSkip
+	m.NEESSkipped = skipped
 	if skipped > 0 {
 		rs.whole[MetricNEESSkipped] = float64(skipped)
 	}
