@@ -12,8 +12,9 @@ func init() {
 		name: "bless",
 		usage: "bless [--tracker CMD] [--all] [--prune] [--config FILE] [-j N] [--profile NAME] " +
 			"[--golden-runs G] [--ci] [SCENARIO...]",
-		summary: "Record golden files (scan tapes, reference and tracker output, metrics) for the first runs of each scenario.",
-		run:     runBless,
+		summary: "Record golden files (scan tapes, reference and tracker output, metrics) for the first runs of each scenario, " +
+			"and every run's whole-run metric values (golden/<scenario>/<tracker>/metrics.jsonl).",
+		run: runBless,
 	})
 }
 
@@ -22,6 +23,13 @@ func init() {
 var blessMidWrite func(path string)
 
 const blessHelp = `
+Scan tapes, reference and tracker output and per-step metrics are recorded
+for the first runs of each scenario (golden_runs in the project file,
+--golden-runs); the tracker's whole-run metric values (mean GOSPA, ID
+switches, NEES in band...) are recorded for every run of the scenario, one
+line per run, in <golden dir>/<scenario>/<tracker>/metrics.jsonl, the
+baseline of the paired gates.
+
 Only goldens that are missing, stale or outside their tolerance are written,
 each atomically, unless --all is given; goldens within tolerance keep their
 bytes. With CI=true or --ci nothing is written and any golden that would be
