@@ -97,7 +97,8 @@ const (
 // that did not load), position components inside the state, runs_planned
 // between 0 and MaxRunsPlanned, run indices ≥ 0 and below runs_planned
 // when it is known; per-step NEES bounds (nees_low_by_step,
-// nees_high_by_step) either both absent or both as long as nees;
+// nees_high_by_step) either both absent or both as long as nees, and
+// nees_steps absent or as long as nees, ascending and ≥ 0;
 // well-formed gate rules. Errors are fieldErrors, so
 // that Unmarshal names the line and column.
 func validate(s *Suite) error {
@@ -135,6 +136,16 @@ func validate(s *Suite) error {
 			}
 			if len(m.NEESHighByStep) != len(m.NEES) {
 				return fieldErr(p+".metrics.nees_high_by_step", "expected one bound per step of nees (%d), got %d", len(m.NEES), len(m.NEESHighByStep))
+			}
+		}
+		if m := sc.Metrics; m != nil && len(m.NEESSteps) > 0 {
+			if len(m.NEESSteps) != len(m.NEES) {
+				return fieldErr(p+".metrics.nees_steps", "expected one step per entry of nees (%d), got %d", len(m.NEES), len(m.NEESSteps))
+			}
+			for k, st := range m.NEESSteps {
+				if st < 0 || (k > 0 && st <= m.NEESSteps[k-1]) {
+					return fieldErr(fmt.Sprintf("%s.metrics.nees_steps[%d]", p, k), "expected a step ≥ 0 after the previous one, got %d", st)
+				}
 			}
 		}
 		for k, r := range sc.Runs {

@@ -40,7 +40,8 @@ import (
 // so NEESLow, NEESHigh, NEESConfidence and NEESInBand are kept only when
 // every part gives the same band, and dropped otherwise; the per-step
 // bounds (NEESLowByStep, NEESHighByStep) depend on each step's count,
-// which the parts' summaries do not carry, and are left out. Gates decided on
+// which the parts' summaries do not carry, and are left out, as are the
+// steps of the NEES averages (NEESSteps), which are pooled by position. Gates decided on
 // part of the runs cannot be combined: they are dropped, and a note in
 // Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
 // and gates again from the runs' own values (runner.Judge), which gives the
@@ -379,6 +380,7 @@ func cloneMetrics(m *Metrics) *Metrics {
 	c := *m
 	c.GOSPA = slices.Clone(m.GOSPA)
 	c.NEES = slices.Clone(m.NEES)
+	c.NEESSteps = slices.Clone(m.NEESSteps)
 	c.NEESLowByStep = slices.Clone(m.NEESLowByStep)
 	c.NEESHighByStep = slices.Clone(m.NEESHighByStep)
 	return &c

@@ -16,13 +16,14 @@ import (
 func bandMetrics() *result.Metrics {
 	return &result.Metrics{Runs: 4, GOSPA: []float64{1, 2, 3}, MeanGOSPA: 2,
 		NEES:           []float64{3.9, 4.4, 4.1},
+		NEESSteps:      []int{0, 2, 3},
 		NEESLowByStep:  []float64{3.25, 3.46, 3.25},
 		NEESHighByStep: []float64{4.82, 4.57, 4.82},
 		NEESConfidence: 0.95, NEESInBand: 1}
 }
 
 // TestNEESBandsRoundTrip: the per-step bounds and the skipped-sample count
-// survive Write and Read bit for bit, non-finite bounds included, and the
+// and the steps of the averages survive Write and Read bit for bit, non-finite bounds included, and the
 // written file conforms to schema.json.
 func TestNEESBandsRoundTrip(t *testing.T) {
 	s := small()
@@ -35,7 +36,7 @@ func TestNEESBandsRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{`"nees_low_by_step": [`, `"nees_high_by_step": [`, `"Infinity"`, `"nees_skipped": 3`} {
+	for _, want := range []string{`"nees_steps": [`, `"nees_low_by_step": [`, `"nees_high_by_step": [`, `"Infinity"`, `"nees_skipped": 3`} {
 		if !strings.Contains(string(data), want) {
 			t.Errorf("written file lacks %s", want)
 		}
@@ -55,7 +56,7 @@ func TestNEESBandsRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, absent := range []string{"by_step", "nees_skipped"} {
+	for _, absent := range []string{"by_step", "nees_steps", "nees_skipped"} {
 		if strings.Contains(string(plain), absent) {
 			t.Errorf("a result without bands writes %q", absent)
 		}
@@ -90,7 +91,20 @@ func TestReadRejectsUnevenNEESBands(t *testing.T) {
 			}
 		})
 	}
-	ok := metrics(`[4, 4]`, `, "nees_low_by_step": [3, 3]`, `, "nees_high_by_step": [5, "Infinity"]`)
+	for _, tt := range []struct{ name, steps, want string }{
+		{"short", `[0]`, "scenarios[0].metrics.nees_steps: expected one step per entry of nees (2), got 1"},
+		{"negative", `[-1, 3]`, "scenarios[0].metrics.nees_steps[0]: expected a step ≥ 0 after the previous one, got -1"},
+		{"repeated", `[3, 3]`, "scenarios[0].metrics.nees_steps[1]: expected a step ≥ 0 after the previous one, got 3"},
+		{"descending", `[4, 3]`, "scenarios[0].metrics.nees_steps[1]: expected a step ≥ 0 after the previous one, got 3"},
+	} {
+		t.Run("steps "+tt.name, func(t *testing.T) {
+			_, err := result.Unmarshal("f.json", mutate(t, `"state_dim": 4,`, metrics(`[4, 4]`, `, "nees_steps": `+tt.steps, ``)))
+			if err == nil || !strings.Contains(err.Error(), tt.want) {
+				t.Errorf("error = %v, want it to contain %q", err, tt.want)
+			}
+		})
+	}
+	ok := metrics(`[4, 4], "nees_steps": [0, 7]`, `, "nees_low_by_step": [3, 3]`, `, "nees_high_by_step": [5, "Infinity"]`)
 	if _, err := result.Unmarshal("f.json", mutate(t, `"state_dim": 4,`, ok)); err != nil {
 		t.Errorf("paired bounds rejected: %v", err)
 	}
@@ -127,8 +141,8 @@ func TestMergeNEESBands(t *testing.T) {
 	if d := cmp.Diff(bandMetrics(), m); d != "" {
 		t.Fatalf("whole scenario's metrics (-want +got):\n%s", d)
 	}
-	m.NEESLowByStep[0], m.NEESHighByStep[0] = -1, -1
-	if a.Scenarios[0].Metrics.NEESLowByStep[0] != 3.25 || a.Scenarios[0].Metrics.NEESHighByStep[0] != 4.82 {
+	m.NEESLowByStep[0], m.NEESHighByStep[0], m.NEESSteps[0] = -1, -1, -1
+	if a.Scenarios[0].Metrics.NEESLowByStep[0] != 3.25 || a.Scenarios[0].Metrics.NEESHighByStep[0] != 4.82 || a.Scenarios[0].Metrics.NEESSteps[0] != 0 {
 		t.Error("the merged metrics share their per-step bounds with the shard's")
 	}
 
@@ -139,7 +153,7 @@ func TestMergeNEESBands(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m := got.Scenarios[0].Metrics; len(m.NEES) != 3 || m.NEESLowByStep != nil || m.NEESHighByStep != nil {
-		t.Errorf("pooled metrics: %d averages, bounds %v and %v; want 3 and no bounds", len(m.NEES), m.NEESLowByStep, m.NEESHighByStep)
+	if m := got.Scenarios[0].Metrics; len(m.NEES) != 3 || m.NEESLowByStep != nil || m.NEESHighByStep != nil || m.NEESSteps != nil {
+		t.Errorf("pooled metrics: %d averages, bounds %v and %v, steps %v; want 3 and no bounds or steps", len(m.NEES), m.NEESLowByStep, m.NEESHighByStep, m.NEESSteps)
 	}
 }

@@ -355,6 +355,11 @@ type Metrics struct {
 	// NEES values of every matched track with a covariance over all runs.
 	// Steps without such a value are left out, as in RunMetrics.
 	NEES []float64 `json:"nees,omitempty"`
+	// NEESSteps, parallel to NEES, holds the step of each average, in
+	// ascending order, so that plots place them at their steps. Empty in
+	// a summary pooled from shards and in results written before it was
+	// recorded; NEES is then in step order with the steps unknown.
+	NEESSteps []int `json:"nees_steps,omitempty"`
 	// NEESLowByStep and NEESHighByStep are parallel to NEES: the bounds of
 	// the acceptance band of each average at confidence NEESConfidence,
 	// for that step's own number of values M_k (runs × matched tracks),

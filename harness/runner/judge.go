@@ -35,7 +35,8 @@ import (
 //	                 runs), judged against the chi-square band of its own
 //	                 count, [χ²_{n·M_k}⁻¹((1−c)/2), χ²_{n·M_k}⁻¹((1+c)/2)] / M_k,
 //	                 c = 0.95. Steps with M_k = 0 are left out of the
-//	                 series; Metrics.NEESLowByStep and NEESHighByStep hold
+//	                 series, Metrics.NEESSteps names the steps kept;
+//	                 Metrics.NEESLowByStep and NEESHighByStep hold
 //	                 each remaining step's band, parallel to Metrics.NEES,
 //	                 and Metrics.NEESLow and NEESHigh the single band when
 //	                 every such step has the same M_k (else both are 0).
@@ -138,6 +139,7 @@ func summarise(sc *result.Scenario) *result.Metrics {
 		for _, st := range cons.Steps {
 			if st.Count > 0 {
 				out.NEES = append(out.NEES, st.Mean)
+				out.NEESSteps = append(out.NEESSteps, st.Step)
 				out.NEESLowByStep = append(out.NEESLowByStep, st.Lo)
 				out.NEESHighByStep = append(out.NEESHighByStep, st.Hi)
 			}

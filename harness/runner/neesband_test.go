@@ -2,6 +2,7 @@ package runner
 
 import (
 	"math"
+	"slices"
 	"testing"
 
 	"trackgate/harness/config"
@@ -30,14 +31,15 @@ func TestNEESBandByStepPublished(t *testing.T) {
 		perRun            []int // matched tracks per run at each step (5 runs)
 		value             []float64
 		nees, lows, highs []float64
+		steps             []int
 		lo, hi            float64 // the single band; 0, 0 for none
 	}{
 		{"counts 50, none, 100", []int{10, 0, 20}, []float64{4, 9, 4.7},
-			[]float64{4, 4.7}, []float64{lo50, lo100}, []float64{hi50, hi100}, 0, 0},
+			[]float64{4, 4.7}, []float64{lo50, lo100}, []float64{hi50, hi100}, []int{0, 2}, 0, 0},
 		{"counts 100, 50, 100", []int{20, 10, 20}, []float64{4.6, 4.7, 3.5},
-			[]float64{4.6, 4.7, 3.5}, []float64{lo100, lo50, lo100}, []float64{hi100, hi50, hi100}, 0, 0},
+			[]float64{4.6, 4.7, 3.5}, []float64{lo100, lo50, lo100}, []float64{hi100, hi50, hi100}, []int{0, 1, 2}, 0, 0},
 		{"none, 50, 50", []int{0, 10, 10}, []float64{1, 4, 3},
-			[]float64{4, 3}, []float64{lo50, lo50}, []float64{hi50, hi50}, lo50, hi50},
+			[]float64{4, 3}, []float64{lo50, lo50}, []float64{hi50, hi50}, []int{1, 2}, lo50, hi50},
 	} {
 		t.Run(tt.name, func(t *testing.T) {
 			s := bandScenario(5, tt.perRun, tt.value)
@@ -55,6 +57,9 @@ func TestNEESBandByStepPublished(t *testing.T) {
 				if math.Abs(m.NEESLowByStep[j]-tt.lows[j]) > 1e-9 || math.Abs(m.NEESHighByStep[j]-tt.highs[j]) > 1e-9 {
 					t.Errorf("band %d is [%.10f, %.10f], want [%.10f, %.10f]", j, m.NEESLowByStep[j], m.NEESHighByStep[j], tt.lows[j], tt.highs[j])
 				}
+			}
+			if !slices.Equal(m.NEESSteps, tt.steps) {
+				t.Errorf("steps of the averages %v, want %v", m.NEESSteps, tt.steps)
 			}
 			if math.Abs(m.NEESLow-tt.lo) > 1e-9 || math.Abs(m.NEESHigh-tt.hi) > 1e-9 || (tt.lo == 0) != (m.NEESLow == 0) {
 				t.Errorf("single band [%.10f, %.10f], want [%.10f, %.10f]", m.NEESLow, m.NEESHigh, tt.lo, tt.hi)
@@ -97,12 +102,13 @@ func TestNEESBandByStepFollowsCounts(t *testing.T) {
 			pooled[k] = append(pooled[k], vs...)
 		}
 	}
-	var counts []int
+	var counts, steps []int
 	var means []float64
-	for _, vs := range pooled {
+	for k, vs := range pooled {
 		if len(vs) == 0 {
 			continue
 		}
+		steps = append(steps, k)
 		sum := 0.0
 		for _, v := range vs {
 			sum += v
@@ -122,6 +128,9 @@ func TestNEESBandByStepFollowsCounts(t *testing.T) {
 		if math.Abs(m.NEES[j]-means[j]) > 1e-12*math.Max(1, means[j]) {
 			t.Errorf("step %d of the series: average %g, want %g", j, m.NEES[j], means[j])
 		}
+	}
+	if !slices.Equal(m.NEESSteps, steps) {
+		t.Errorf("steps of the averages %v, want %v", m.NEESSteps, steps)
 	}
 	if len(distinct) < 2 {
 		t.Fatalf("counts %v do not vary; the scenario no longer tests varying counts", counts)
