@@ -65,8 +65,23 @@ func Merge(suites ...*Suite) (*Suite, error) {
 		return nil, fmt.Errorf("merge: %s: shard total must be at least 1", describe(0, first))
 	}
 	if total > len(suites) {
-		// Checked before anything is sized by total.
-		return nil, fmt.Errorf("merge: shards missing: %s says there are %d shards, %d results given", describe(0, first), total, len(suites))
+		// Checked before anything is sized by total: name the first missing
+		// indices, which lie within the first len(suites)+10 numbers.
+		held := make(map[int]bool, len(suites))
+		for _, s := range suites {
+			held[shardOf(s).Index] = true
+		}
+		var missing []string
+		for k := 0; k < total && len(missing) < 10; k++ {
+			if !held[k] {
+				missing = append(missing, fmt.Sprintf("index %d of %d", k, total))
+			}
+		}
+		more := ""
+		if n := total - len(held); n > len(missing) {
+			more = fmt.Sprintf(" and %d more", n-len(missing))
+		}
+		return nil, fmt.Errorf("merge: shards missing: %s%s (%s says there are %d shards, %d results given)", strings.Join(missing, ", "), more, describe(0, first), total, len(suites))
 	}
 	seen := make([]int, total) // argument position+1 per shard index
 	var errs []string
