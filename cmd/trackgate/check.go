@@ -78,7 +78,7 @@ func addCommon(fs *flag.FlagSet, withAgainst bool) *commonFlags {
 	f.runs = fs.Int("runs", 0, fmt.Sprintf("replace every scenario's run count, at most %d (0: the scenario's own)", runner.MaxRuns))
 	f.jobs = fs.Int("j", runtime.NumCPU(), "runs handled at once (results do not depend on it)")
 	f.shardText = fs.String("shard", "", "run only shard K of N, written K/N")
-	f.shardBase = fs.Int("shard-base", 0, "the number of the first shard in --shard: 0 or 1")
+	f.shardBase = fs.Int("shard-base", -1, "the number of the first shard in --shard: 0 or 1 (required with --shard; never guessed)")
 	f.profile = fs.String("profile", "", "tolerance profile instead of the project's: bit-exact, float64-port or float32-port")
 	f.out = fs.String("out", "", "folder for the actual output of failing golden comparisons")
 	f.name = fs.String("name", "", "the tracker's golden folder name (default: tracker.name of the project file)")
@@ -122,7 +122,11 @@ func (f *commonFlags) options(scenarios []string) (runner.Options, error) {
 	}
 	o.Workers = *f.jobs
 	if *f.shardText != "" {
-		if *f.shardBase != 0 && *f.shardBase != 1 {
+		switch *f.shardBase {
+		case 0, 1:
+		case -1:
+			return o, fmt.Errorf("--shard needs --shard-base 0 or 1: CI systems number shards from 0 (GitHub Actions job index, CircleCI, Buildkite, Kubernetes completion index) or from 1 (GitLab CI_NODE_INDEX), and trackgate does not guess")
+		default:
 			return o, fmt.Errorf("--shard-base: expected 0 or 1, got %d", *f.shardBase)
 		}
 		sp, err := shard.Parse(*f.shardText, *f.shardBase)

@@ -156,7 +156,8 @@ func TestCheckAndBlessCommands(t *testing.T) {
 		{"unknown against", []string{"check", "--config", cfg, "--against", "sideways"}, exitUsage},
 		{"unterminated quote", []string{"check", "--config", cfg, "--tracker", "'./quay"}, exitUsage},
 		{"missing scenario", []string{"check", "--config", cfg, "--against", "reference", "no-such-scenario.yaml"}, exitUsage},
-		{"bad shard", []string{"check", "--config", cfg, "--shard", "3/2"}, exitUsage},
+		{"bad shard", []string{"check", "--config", cfg, "--shard", "3/2", "--shard-base", "0"}, exitUsage},
+		{"shard without its base", []string{"check", "--config", cfg, "--shard", "0/2"}, exitUsage},
 		{"tracker exits", []string{"check", "--config", cfg, "--against", "reference", "--tracker", "sh -c 'exit 5'"}, exitTracker},
 		{"unknown profile", []string{"bless", "--config", cfg, "--profile", "float16"}, exitUsage},
 	}

@@ -72,7 +72,7 @@ func TestMergeCommandErrors(t *testing.T) {
 		args []string
 		want string
 	}{
-		{"gap", []string{"merge", "-o", out, files[0], files[2]}, "shards missing: result 1 (shard 0/3) says there are 3 shards, 2 results given"},
+		{"gap", []string{"merge", "-o", out, files[0], files[2]}, "shards missing: index 1 of 3 (result 1 (shard 0/3) says there are 3 shards, 2 results given)"},
 		{"overlap", []string{"merge", "-o", out, files[0], files[1], files[1], files[2]}, "shard 1/3 given twice"},
 		{"no output", append([]string{"merge"}, files...), "-o: the merged result file is required"},
 		{"no input", []string{"merge", "-o", out}, "expected at least one shard result file"},
@@ -113,7 +113,7 @@ func TestMergeJudgesRecordedGates(t *testing.T) {
 	for k := 0; k < 2; k++ {
 		f := filepath.Join(dir, fmt.Sprintf("shard-%d.json", k))
 		code, out, errOut := runCmd("check", "--config", gated, "--against", "reference", "--runs", "4",
-			"--shard", fmt.Sprintf("%d/2:scenarios", k), "--quiet", "--json", f)
+			"--shard", fmt.Sprintf("%d/2:scenarios", k), "--shard-base", "0", "--quiet", "--json", f)
 		if code != exitFail {
 			t.Fatalf("shard %d: exit %d, want %d (the gate fails)\n%s%s", k, code, exitFail, out, errOut)
 		}
@@ -151,7 +151,7 @@ func TestMergeJudgesRecordedGates(t *testing.T) {
 	// A shard checked without the gate does not merge with a gated one.
 	plain := filepath.Join(dir, "plain-1.json")
 	if code, out, errOut := runCmd("check", "--config", cfg, "--against", "reference", "--runs", "4",
-		"--shard", "1/2:scenarios", "--quiet", "--json", plain); code != exitPass {
+		"--shard", "1/2:scenarios", "--shard-base", "0", "--quiet", "--json", plain); code != exitPass {
 		t.Fatalf("ungated shard: exit %d\n%s%s", code, out, errOut)
 	}
 	code, _, errOut = runCmd("merge", "-o", merged, shards[0], plain)
