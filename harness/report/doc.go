@@ -42,7 +42,11 @@
 // pass, else run 0): truth, detections, reference and tracker estimates
 // with 2-sigma ellipses in the plane (or position against time for 1-D
 // scenarios), the association timeline, GOSPA over time and the average
-// NEES over time with its acceptance band.
+// NEES over time with its acceptance band. The band of step k is that of
+// the M_k values averaged there (runs × matched tracks), drawn as a
+// stepped band when the result records the bounds step by step, else the
+// one band shared by every step; NEES values are placed at their steps
+// when the result records them.
 //
 // The 2-sigma ellipse of a covariance [σxx σxy; σxy σyy] has semi-axes
 // 2·sqrt(λ₁), 2·sqrt(λ₂) along the eigenvectors, with

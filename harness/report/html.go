@@ -548,17 +548,37 @@ func timelinePlot(assoc []string, m marks) template.HTML {
 type series struct {
 	class, label string
 	ys           []float64
+	// xs holds the step of each value; nil means ys[k] is at step k.
+	xs []float64
+}
+
+// x returns the step of value k.
+func (sr *series) x(k int) float64 {
+	if sr.xs != nil {
+		return sr.xs[k]
+	}
+	return float64(k)
 }
 
 // band is an acceptance band behind a series plot: either one pair of
 // bounds for every step (lo and hi of length 1, drawn as a rectangle
-// across the plot) or bounds step by step (lo[k], hi[k] for step k, drawn
-// as a stepped polygon: each step's bounds hold from k−½ to k+½, clipped
-// to the plot). Steps whose bounds are not finite, or whose lower bound
-// is not below the upper, are gaps in the polygon.
+// across the plot) or bounds step by step (lo[k], hi[k] for step xs[k],
+// or step k when xs is nil, drawn as a stepped polygon: each step's
+// bounds hold from the step −½ to +½, clipped to the plot). Steps without
+// bounds (left out of xs), with bounds that are not finite, or with a
+// lower bound not below the upper, are gaps in the polygon.
 type band struct {
 	lo, hi []float64
+	xs     []float64
 	label  string
+}
+
+// x returns the step of bounds k.
+func (b *band) x(k int) float64 {
+	if b.xs != nil {
+		return b.xs[k]
+	}
+	return float64(k)
 }
 
 // stepped reports whether b has bounds by step.
@@ -566,7 +586,8 @@ func (b *band) stepped() bool { return len(b.lo) > 1 || len(b.hi) > 1 }
 
 // usable reports whether the bounds of step k can be drawn.
 func (b *band) usable(k int) bool {
-	return k < len(b.lo) && k < len(b.hi) && finite(b.lo[k], b.hi[k]) && b.lo[k] < b.hi[k]
+	return k < len(b.lo) && k < len(b.hi) && (b.xs == nil || k < len(b.xs) && finite(b.xs[k])) &&
+		finite(b.lo[k], b.hi[k]) && b.lo[k] < b.hi[k]
 }
 
 // path returns the SVG path data of a stepped band in frame f: one closed
@@ -575,6 +596,9 @@ func (b *band) usable(k int) bool {
 func (b *band) path(f *frame) string {
 	var d strings.Builder
 	n := min(len(b.lo), len(b.hi))
+	if b.xs != nil {
+		n = min(n, len(b.xs))
+	}
 	x := func(v float64) float64 { return f.px(math.Max(f.x0, math.Min(f.x1, v))) }
 	for k := 0; k < n; {
 		if !b.usable(k) {
@@ -582,7 +606,7 @@ func (b *band) path(f *frame) string {
 			continue
 		}
 		end := k
-		for end+1 < n && b.usable(end+1) {
+		for end+1 < n && b.usable(end+1) && b.x(end+1) == b.x(end)+1 {
 			end++
 		}
 		if d.Len() > 0 {
@@ -591,10 +615,10 @@ func (b *band) path(f *frame) string {
 		// Each edge moves vertically only where its pixel height changes,
 		// and horizontally to the end of a run of equal heights.
 		y := f1(f.py(b.hi[k]))
-		fmt.Fprintf(&d, "M%s %s", f1(x(float64(k)-0.5)), y)
+		fmt.Fprintf(&d, "M%s %s", f1(x(b.x(k)-0.5)), y)
 		for j := k; j <= end; j++ {
 			if j == end || f1(f.py(b.hi[j+1])) != y {
-				fmt.Fprintf(&d, " H%s", f1(x(float64(j)+0.5)))
+				fmt.Fprintf(&d, " H%s", f1(x(b.x(j)+0.5)))
 				if j < end {
 					y = f1(f.py(b.hi[j+1]))
 					fmt.Fprintf(&d, " V%s", y)
@@ -605,7 +629,7 @@ func (b *band) path(f *frame) string {
 		fmt.Fprintf(&d, " V%s", y)
 		for j := end; j >= k; j-- {
 			if j == k || f1(f.py(b.lo[j-1])) != y {
-				fmt.Fprintf(&d, " H%s", f1(x(float64(j)-0.5)))
+				fmt.Fprintf(&d, " H%s", f1(x(b.x(j)-0.5)))
 				if j > k {
 					y = f1(f.py(b.lo[j-1]))
 					fmt.Fprintf(&d, " V%s", y)
@@ -625,15 +649,15 @@ func seriesPlot(label, ytitle string, ss []series, bd *band, m marks) template.H
 	b.add(0, 0)
 	for _, sr := range ss {
 		for k, y := range sr.ys {
-			b.add(float64(k), y)
+			b.add(sr.x(k), y)
 		}
 	}
 	if bd != nil {
 		drawable := false
 		for k := range bd.lo {
 			if bd.usable(k) {
-				b.add(0, bd.lo[k])
-				b.add(0, bd.hi[k])
+				b.add(bd.x(k), bd.lo[k])
+				b.add(bd.x(k), bd.hi[k])
 				drawable = true
 			}
 		}
@@ -660,8 +684,8 @@ func seriesPlot(label, ytitle string, ss []series, bd *band, m marks) template.H
 	for _, sr := range ss {
 		var xs, ys []float64
 		for k, y := range sr.ys {
-			if finite(y) {
-				xs, ys = append(xs, f.px(float64(k))), append(ys, f.py(y))
+			if x := sr.x(k); finite(x, y) {
+				xs, ys = append(xs, f.px(x)), append(ys, f.py(y))
 			}
 		}
 		s.polyline(sr.class, sr.label, xs, ys)
@@ -678,10 +702,10 @@ func seriesPlot(label, ytitle string, ss []series, bd *band, m marks) template.H
 func gospaPlot(sc *result.Scenario, r *result.Run, m marks) template.HTML {
 	var ss []series
 	if r.Metrics != nil && len(r.Metrics.GOSPA) > 0 {
-		ss = append(ss, series{"trk", fmt.Sprintf("run %d", r.Index), r.Metrics.GOSPA})
+		ss = append(ss, series{class: "trk", label: fmt.Sprintf("run %d", r.Index), ys: r.Metrics.GOSPA})
 	}
 	if sc.Metrics != nil && len(sc.Metrics.GOSPA) > 0 {
-		ss = append(ss, series{"avg", fmt.Sprintf("mean of %d runs", sc.Metrics.Runs), sc.Metrics.GOSPA})
+		ss = append(ss, series{class: "avg", label: fmt.Sprintf("mean of %d runs", sc.Metrics.Runs), ys: sc.Metrics.GOSPA})
 	}
 	if len(ss) == 0 {
 		return ""
@@ -693,11 +717,28 @@ func gospaPlot(sc *result.Scenario, r *result.Run, m marks) template.HTML {
 // acceptance band: the band of each step's own number of values when the
 // summary has it (NEESLowByStep, NEESHighByStep as long as NEES), else
 // the single band NEESLow..NEESHigh, else none.
+//
+// The NEES series leave out steps without a value. When the summary names
+// the steps of its averages (NEESSteps), or there is no summary, each
+// value is placed at its step: the run's at the steps of its NEESSamples
+// (which keep every step). Otherwise, as in results written before the
+// steps were recorded, the values are placed one after the other.
 func neesPlot(sc *result.Scenario, r *result.Run) template.HTML {
 	var ss []series
 	var bd *band
-	if mt := sc.Metrics; mt != nil && len(mt.NEES) > 0 {
-		ss = append(ss, series{"avg", fmt.Sprintf("average of %d runs", mt.Runs), mt.NEES})
+	mt := sc.Metrics
+	atSteps := mt == nil || len(mt.NEES) == 0 || len(mt.NEESSteps) == len(mt.NEES)
+	if mt != nil && len(mt.NEES) > 0 {
+		avg := series{class: "avg", label: fmt.Sprintf("average of %d runs", mt.Runs), ys: mt.NEES}
+		var xs []float64
+		if atSteps {
+			xs = make([]float64, len(mt.NEESSteps))
+			for j, st := range mt.NEESSteps {
+				xs[j] = float64(st)
+			}
+			avg.xs = xs
+		}
+		ss = append(ss, avg)
 		label := "acceptance band"
 		if c := mt.NEESConfidence; c > 0 && c < 1 {
 			label = fmt.Sprintf("%s%% band", num(100*c))
@@ -706,13 +747,27 @@ func neesPlot(sc *result.Scenario, r *result.Run) template.HTML {
 		case len(mt.NEESLowByStep) == len(mt.NEES) && len(mt.NEESHighByStep) == len(mt.NEES):
 			// With one step, stepped() is false and the band is that
 			// step's rectangle.
-			bd = &band{lo: mt.NEESLowByStep, hi: mt.NEESHighByStep, label: label}
+			bd = &band{lo: mt.NEESLowByStep, hi: mt.NEESHighByStep, xs: xs, label: label}
 		case mt.NEESHigh > mt.NEESLow:
 			bd = &band{lo: []float64{mt.NEESLow}, hi: []float64{mt.NEESHigh}, label: label}
 		}
 	}
-	if r.Metrics != nil && len(r.Metrics.NEES) > 0 {
-		ss = append([]series{{"trk", fmt.Sprintf("run %d", r.Index), r.Metrics.NEES}}, ss...)
+	if rm := r.Metrics; rm != nil && len(rm.NEES) > 0 {
+		run := series{class: "trk", label: fmt.Sprintf("run %d", r.Index), ys: rm.NEES}
+		if atSteps && len(rm.NEESSamples) > 0 {
+			run = series{class: "trk", label: run.label, ys: []float64{}, xs: []float64{}}
+			for k, vs := range rm.NEESSamples {
+				if len(vs) == 0 {
+					continue
+				}
+				s := 0.0
+				for _, v := range vs {
+					s += v
+				}
+				run.ys, run.xs = append(run.ys, s/float64(len(vs))), append(run.xs, float64(k))
+			}
+		}
+		ss = append([]series{run}, ss...)
 	}
 	if len(ss) == 0 {
 		return ""

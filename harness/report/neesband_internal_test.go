@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"math"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -131,5 +132,68 @@ func TestNEESPlotBands(t *testing.T) {
 	sc.Metrics.NEESHighByStep = []float64{5, 5, 5, 5}
 	if out := neesSVG(t, sc); !strings.Contains(out, ">acceptance band</text>") {
 		t.Errorf("no confidence: legend %q", out)
+	}
+}
+
+// TestBandPathSteps: with the steps of the bounds given, a step left out
+// (no average there) is a gap, and each bound spans its own step.
+func TestBandPathSteps(t *testing.T) {
+	f := &frame{left: 0, top: 0, width: 100, height: 100, x0: 0, x1: 4, y0: 0, y1: 10}
+	b := &band{lo: []float64{1, 1, 2}, hi: []float64{5, 5, 6}, xs: []float64{0, 1, 3}}
+	// Steps 0–1 from 0 (−½ clipped) to 1½ (37.5 px); step 3 from 2½
+	// (62.5 px) to 3½ (87.5 px), 6 (40 px) over 2 (80 px).
+	want := "M0.0 50.0 H37.5 V90.0 H0.0 Z M62.5 40.0 H87.5 V80.0 H62.5 Z"
+	if got := b.path(f); got != want {
+		t.Errorf("path\n got %q\nwant %q", got, want)
+	}
+}
+
+// firstX returns the x pixel of the first point of the polyline whose
+// title is title.
+func firstX(t *testing.T, svg, title string) string {
+	t.Helper()
+	m := regexp.MustCompile(`<polyline class="[a-z]+" points="([0-9.]+),[^"]*"><title>` + regexp.QuoteMeta(title) + `</title>`).FindStringSubmatch(svg)
+	if m == nil {
+		t.Fatalf("no polyline %q in %q", title, svg)
+	}
+	return m[1]
+}
+
+// TestNEESPlotAtSteps: when the summary names the steps of its averages,
+// the averages, their band and the run's NEES (from its samples, which
+// keep every step) are placed at their steps; a result without the steps
+// places the values one after the other, as before.
+func TestNEESPlotAtSteps(t *testing.T) {
+	sc := &result.Scenario{Name: "ferry-ramp", StateDim: 4,
+		Runs: []result.Run{{Index: 0, Metrics: &result.RunMetrics{NEES: []float64{4, 5.5},
+			NEESSamples: [][]float64{{}, {}, {4}, {5, 6}, {}}}}},
+		Metrics: &result.Metrics{Runs: 2, NEES: []float64{4.2, 5.1, 3.8}, NEESSteps: []int{2, 3, 4},
+			NEESLowByStep: []float64{2, 3, 3}, NEESHighByStep: []float64{7, 6, 6}, NEESConfidence: 0.95}}
+	left := "62.0" // the plot area's left edge, step 0
+	out := neesSVG(t, sc)
+	if !strings.Contains(out, `<rect class="area" x="`+left+`"`) {
+		t.Fatalf("plot area does not start at %s: %q", left, out)
+	}
+	run, avg := firstX(t, out, "run 0"), firstX(t, out, "average of 2 runs")
+	if run != avg || run == left {
+		t.Errorf("first run value at x=%s, first average at x=%s; want both at step 2, right of %s", run, avg, left)
+	}
+	// The band starts half a step before step 2, left of the first average.
+	m := regexp.MustCompile(`<path class="band" d="M([0-9.]+) `).FindStringSubmatch(out)
+	px := func(s string) float64 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	if m == nil || !(px(left) < px(m[1]) && px(m[1]) < px(avg)) {
+		t.Errorf("band starts at %v; want between %s and %s", m, left, avg)
+	}
+
+	sc.Metrics.NEESSteps = nil
+	out = neesSVG(t, sc)
+	if run, avg := firstX(t, out, "run 0"), firstX(t, out, "average of 2 runs"); run != left || avg != left {
+		t.Errorf("without steps: first values at x=%s and %s, want both at %s", run, avg, left)
 	}
 }

@@ -41,9 +41,9 @@ import (
 // every part gives the same band, and dropped otherwise; the per-step
 // bounds (NEESLowByStep, NEESHighByStep) depend on each step's count,
 // which the parts' summaries do not carry, and are left out, as are the
-// steps of the NEES averages (NEESSteps), which are pooled by position. Gates decided on
-// part of the runs cannot be combined: they are dropped, and a note in
-// Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
+// steps of the NEES averages (NEESSteps), which are pooled by position.
+// Gates decided on part of the runs cannot be combined: they are dropped,
+// and a note in Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
 // and gates again from the runs' own values (runner.Judge), which gives the
 // unsharded result, with the gate rules the shards recorded.
 //
