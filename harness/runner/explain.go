@@ -35,6 +35,7 @@ func Explain(ctx context.Context, o ExplainOptions, w io.Writer) error {
 	if err != nil {
 		return err
 	}
+	s.readOnly = true
 	scens := s.load()
 	sc := scens[0]
 	if sc.err != nil {

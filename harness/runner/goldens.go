@@ -699,8 +699,12 @@ func (s *settings) blessValues(sc *scen, kept map[*job]map[string]float64) (*run
 
 // leaveActual writes the actual output of a failing golden for review:
 // beside the golden as <golden>.actual, or under Options.Out in the golden
-// layout; in CI mode only under Out. It returns the path written, or "".
+// layout; in CI mode only under Out; never for Explain. It returns the path
+// written, or "".
 func (s *settings) leaveActual(a *artefact, ci bool) string {
+	if s.readOnly {
+		return ""
+	}
 	p := a.path + ".actual"
 	if s.Out != "" {
 		rel, err := filepath.Rel(s.goldenRoot, a.path)

@@ -135,3 +135,32 @@ func TestCIModeLeavesActualOnlyInOut(t *testing.T) {
 		t.Errorf("no actual output under --out: %v", err)
 	}
 }
+
+// TestExplainWritesNothing: explain with a tracker whose golden fails, not
+// in CI mode and with no --out, still leaves the golden folder as it was:
+// explaining only looks.
+func TestExplainWritesNothing(t *testing.T) {
+	root := t.TempDir()
+	files := []string{scenarioFile("tie-mirror-pair")}
+	blessInto(t, root, false, nil, files...)
+	p := filepath.Join(root, "tie-mirror-pair", "harbour-tracker", "run-0.jsonl")
+	f, err := golden.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.Frames[2].Tracks[1].Mean[2] -= 0.25
+	if err := golden.Write(p, f); err != nil {
+		t.Fatal(err)
+	}
+	before := snapshot(t, root)
+	o := variantOptions("reference", files...)
+	o.GoldenDir, o.TrackerName, o.Against = root, "harbour-tracker", AgainstBoth
+	o.Getenv = func(string) string { return "" }
+	var out bytes.Buffer
+	if err := Explain(context.Background(), ExplainOptions{Options: o, File: files[0], Run: 0, Step: 2}, &out); err != nil {
+		t.Fatalf("Explain: %v", err)
+	}
+	if !equalSnap(before, snapshot(t, root)) {
+		t.Error("explain wrote into the golden folder")
+	}
+}

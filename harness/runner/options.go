@@ -126,6 +126,9 @@ type Options struct {
 // settings is Options resolved: every default filled in and checked.
 type settings struct {
 	Options
+	// readOnly keeps every file where it is: set by Explain, which only
+	// looks, so no actual output is left even outside CI mode.
+	readOnly   bool
 	cfg        config.Config
 	argv       []string
 	name       string
