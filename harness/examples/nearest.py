@@ -6,7 +6,8 @@ started from the object's prior at its appear step, and updates each filter
 with the nearest detection inside its gate (greedy, closest pair first).
 Read harness/PROTOCOL.md for the messages.
 
-    trackgate ... -- python3 harness/examples/nearest.py
+    trackgate check --against reference \
+        --tracker "python3 harness/examples/nearest.py" scenarios/*.yaml
 """
 import json
 import math
