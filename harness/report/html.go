@@ -61,7 +61,25 @@ type htmlScenario struct {
 	Plane       template.HTML
 	Timeline    template.HTML
 	GOSPA       template.HTML
+	Split       template.HTML
 	NEES        template.HTML
+	NIS         template.HTML
+	// MeanOSPA is the scenario's mean OSPA, "–" when not recorded;
+	// SplitLine describes the mean GOSPA split, NISLine the NIS summary.
+	MeanOSPA  string
+	SplitLine string
+	NISLine   string
+	// Objects is the per-object RMSE table (pooled over runs when the
+	// summary has it, else the plotted run's) and ObjectsNote says which.
+	Objects     []htmlObject
+	ObjectsNote string
+}
+
+// htmlObject is one row of the per-object RMSE table.
+type htmlObject struct {
+	Object             string
+	Position, Velocity string
+	Steps              int
 }
 
 type htmlProblem struct {
@@ -78,6 +96,18 @@ func htmlScenarioOf(sc *result.Scenario, i int) htmlScenario {
 	h := htmlScenario{Anchor: fmt.Sprintf("s%d", i), Sc: sc, Word: statusWord(sc.Status), StatusClass: string(sc.Status), Passed: c.passed, Runs: c.runs, MeanGOSPA: "–"}
 	if g, ok := meanGOSPA(sc); ok {
 		h.MeanGOSPA = num(g)
+	}
+	h.MeanOSPA = "–"
+	if m := sc.Metrics; m != nil && len(m.OSPA) > 0 {
+		h.MeanOSPA = num(m.MeanOSPA)
+	}
+	if m := sc.Metrics; m != nil && len(m.GOSPALocalisation) > 0 {
+		h.SplitLine = fmt.Sprintf("Mean over runs of the time-averaged parts of GOSPAᵖ: localisation %s + missed %s + false %s; mean OSPA %s (same order and cut-off).",
+			num(m.MeanGOSPALocalisation), num(m.MeanGOSPAMissed), num(m.MeanGOSPAFalse), h.MeanOSPA)
+	}
+	if m := sc.Metrics; m != nil && len(m.NIS) > 0 {
+		h.NISLine = fmt.Sprintf("Mean NIS %s over every sample of every run; %s of the samples lie in the two-sided %s chi-square interval for %d degrees of freedom, and %s of the steps' averages in their band.",
+			num(m.MeanNIS), percent(m.NISSamplesInBand), percent(m.NISConfidence), sc.MeasDim, percent(m.NISInBand))
 	}
 	runs, more := detailRuns(sc, htmlRuns)
 	if more > 0 {
@@ -155,7 +185,20 @@ func htmlScenarioOf(sc *result.Scenario, i int) htmlScenario {
 		h.Shown += " This run has no trace recorded, so only its metrics are plotted."
 	}
 	h.GOSPA = gospaPlot(sc, run, marks)
+	h.Split = splitPlot(run, marks)
 	h.NEES = neesPlot(sc, run)
+	h.NIS = nisPlot(sc, run)
+	objs := []result.ObjectError(nil)
+	if sc.Metrics != nil && len(sc.Metrics.Objects) > 0 {
+		objs = sc.Metrics.Objects
+		h.ObjectsNote = fmt.Sprintf("Pooled over %d runs: RMSE² weighted by each run's covered steps.", sc.Metrics.Runs)
+	} else if run.Metrics != nil && len(run.Metrics.Objects) > 0 {
+		objs = run.Metrics.Objects
+		h.ObjectsNote = fmt.Sprintf("Run %d only.", run.Index)
+	}
+	for _, o := range objs {
+		h.Objects = append(h.Objects, htmlObject{Object: o.Object, Position: num(o.RMSEPosition), Velocity: num(o.RMSEVelocity), Steps: o.Steps})
+	}
 	return h
 }
 
@@ -710,7 +753,67 @@ func gospaPlot(sc *result.Scenario, r *result.Run, m marks) template.HTML {
 	if len(ss) == 0 {
 		return ""
 	}
-	return seriesPlot("GOSPA over time", "GOSPA (m)", ss, nil, m)
+	label := "GOSPA over time"
+	if r.Metrics != nil && len(r.Metrics.OSPA) > 0 {
+		ss = append(ss, series{class: "ospa", label: fmt.Sprintf("OSPA run %d", r.Index), ys: r.Metrics.OSPA})
+		label = "GOSPA and OSPA over time"
+	}
+	return seriesPlot(label, "distance (m)", ss, nil, m)
+}
+
+// splitPlot draws the three parts of the run's GOSPAᵖ step by step
+// (localisation, missed objects, false tracks), which add up to GOSPAᵖ.
+func splitPlot(r *result.Run, m marks) template.HTML {
+	rm := r.Metrics
+	if rm == nil || len(rm.GOSPALocalisation) == 0 {
+		return ""
+	}
+	ss := []series{
+		{class: "loc", label: "localisation", ys: rm.GOSPALocalisation},
+		{class: "miss", label: "missed objects", ys: rm.GOSPAMissed},
+		{class: "fals", label: "false tracks", ys: rm.GOSPAFalse},
+	}
+	return seriesPlot(fmt.Sprintf("GOSPA split of run %d over time", r.Index), "part of GOSPAᵖ", ss, nil, m)
+}
+
+// nisPlot draws the run's NIS per step and the scenario's average NIS
+// with the acceptance band of each step's own number of samples, placed
+// at their steps (NISSteps; the run's at the steps of its NISSamples).
+func nisPlot(sc *result.Scenario, r *result.Run) template.HTML {
+	var ss []series
+	var bd *band
+	if rm := r.Metrics; rm != nil && len(rm.NISSamples) > 0 {
+		run := series{class: "trk", label: fmt.Sprintf("run %d", r.Index), ys: []float64{}, xs: []float64{}}
+		for k, vs := range rm.NISSamples {
+			if len(vs) == 0 {
+				continue
+			}
+			s := 0.0
+			for _, v := range vs {
+				s += v
+			}
+			run.ys, run.xs = append(run.ys, s/float64(len(vs))), append(run.xs, float64(k))
+		}
+		ss = append(ss, run)
+	}
+	if mt := sc.Metrics; mt != nil && len(mt.NIS) > 0 && len(mt.NISSteps) == len(mt.NIS) {
+		xs := make([]float64, len(mt.NISSteps))
+		for j, st := range mt.NISSteps {
+			xs[j] = float64(st)
+		}
+		ss = append(ss, series{class: "avg", label: fmt.Sprintf("average of %d runs", mt.Runs), ys: mt.NIS, xs: xs})
+		if len(mt.NISLowByStep) == len(mt.NIS) && len(mt.NISHighByStep) == len(mt.NIS) {
+			label := "acceptance band"
+			if c := mt.NISConfidence; c > 0 && c < 1 {
+				label = fmt.Sprintf("%s%% band", num(100*c))
+			}
+			bd = &band{lo: mt.NISLowByStep, hi: mt.NISHighByStep, xs: xs, label: label}
+		}
+	}
+	if len(ss) == 0 {
+		return ""
+	}
+	return seriesPlot("NIS over time", "NIS", ss, bd, marks{first: -1})
 }
 
 // neesPlot draws the run's NEES and the scenario's average NEES with its

@@ -48,13 +48,18 @@ func Markdown(w io.Writer, s *result.Suite, opt MarkdownOptions) error {
 	for _, n := range s.Notes {
 		head.WriteString("> **Note:** " + cell(n) + "\n\n")
 	}
-	head.WriteString("| Status | Scenario | Runs passed | Mean GOSPA | Remarks |\n|---|---|---:|---:|---|\n")
+	head.WriteString("| Status | Scenario | Runs passed | Mean GOSPA | GOSPAᵖ localisation / missed / false | Mean OSPA | Remarks |\n|---|---|---:|---:|---:|---:|---|\n")
 	var rows []string
 	for _, sc := range s.Scenarios {
 		c := countRuns(&sc)
-		g := "–"
+		g, parts, ospa := "–", "–", "–"
 		if v, ok := meanGOSPA(&sc); ok {
 			g = num(v)
+		}
+		if _, ok := splitOf(&sc); ok {
+			m := sc.Metrics
+			parts = num(m.MeanGOSPALocalisation) + " / " + num(m.MeanGOSPAMissed) + " / " + num(m.MeanGOSPAFalse)
+			ospa = num(m.MeanOSPA)
 		}
 		var remarks []string
 		if c.ties > 0 {
@@ -71,7 +76,7 @@ func Markdown(w io.Writer, s *result.Suite, opt MarkdownOptions) error {
 				remarks = append(remarks, "gate "+cell(gt.Name)+" "+string(gt.Status))
 			}
 		}
-		rows = append(rows, fmt.Sprintf("| %s | `%s` | %d/%d | %s | %s |\n", statusCell(sc.Status), code(sc.Name), c.passed, c.runs, g, strings.Join(remarks, ", ")))
+		rows = append(rows, fmt.Sprintf("| %s | `%s` | %d/%d | %s | %s | %s | %s |\n", statusCell(sc.Status), code(sc.Name), c.passed, c.runs, g, parts, ospa, strings.Join(remarks, ", ")))
 	}
 	var sections []string
 	for i := range s.Scenarios {

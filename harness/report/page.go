@@ -64,6 +64,10 @@ svg .same { fill:#9fd3b1; }
 svg .tiecell { fill:#7cc6d6; }
 svg .differs { fill:#e0837a; }
 svg .unknown { fill:#d5dce3; }
+svg .ospa { fill:none; stroke:#7a3fb0; stroke-width:1.4; }
+svg .loc { fill:none; stroke:#1f63b5; stroke-width:1.6; }
+svg .miss { fill:none; stroke:#c0392b; stroke-width:1.6; stroke-dasharray:5 2; }
+svg .fals { fill:none; stroke:#b7791f; stroke-width:1.6; stroke-dasharray:2 2; }
 svg .band { fill:#2e7d4f; fill-opacity:.12; stroke:#2e7d4f; stroke-opacity:.4; }
 </style>
 </head>
@@ -77,9 +81,9 @@ svg .band { fill:#2e7d4f; fill-opacity:.12; stroke:#2e7d4f; stroke-opacity:.4; }
 {{end}}<section>
 <h2>Scenarios</h2>
 <table>
-<thead><tr><th>Status</th><th>Scenario</th><th class="n">Runs passed</th><th class="n">Mean GOSPA (m)</th><th>File</th></tr></thead>
+<thead><tr><th>Status</th><th>Scenario</th><th class="n">Runs passed</th><th class="n">Mean GOSPA (m)</th><th class="n">Mean OSPA (m)</th><th>File</th></tr></thead>
 <tbody>
-{{range .Scenarios}}<tr><td><span class="badge b-{{.StatusClass}}">{{.Word}}</span></td><td><a href="#{{.Anchor}}">{{.Sc.Name}}</a></td><td class="n">{{.Passed}}/{{.Runs}}</td><td class="n">{{.MeanGOSPA}}</td><td><code>{{.Sc.File}}</code></td></tr>
+{{range .Scenarios}}<tr><td><span class="badge b-{{.StatusClass}}">{{.Word}}</span></td><td><a href="#{{.Anchor}}">{{.Sc.Name}}</a></td><td class="n">{{.Passed}}/{{.Runs}}</td><td class="n">{{.MeanGOSPA}}</td><td class="n">{{.MeanOSPA}}</td><td><code>{{.Sc.File}}</code></td></tr>
 {{end}}</tbody>
 </table>
 </section>
@@ -103,10 +107,22 @@ svg .band { fill:#2e7d4f; fill-opacity:.12; stroke:#2e7d4f; stroke-opacity:.4; }
 {{.}}{{end}}
 {{with .Timeline}}<h3>Association against the reference</h3>
 {{.}}{{end}}
-{{with .GOSPA}}<h3>GOSPA</h3>
+{{with .GOSPA}}<h3>GOSPA and OSPA</h3>
 {{.}}{{end}}
-{{with .NEES}}<h3>NEES</h3>
+{{with .SplitLine}}<p class="note">{{.}}</p>
+{{end}}{{with .Split}}{{.}}{{end}}
+{{with .Objects}}<h3>Per-object RMSE</h3>
+<table>
+<thead><tr><th>Object</th><th class="n">RMSE position</th><th class="n">RMSE velocity</th><th class="n">Steps</th></tr></thead>
+<tbody>{{range .}}<tr><td>{{.Object}}</td><td class="n">{{.Position}}</td><td class="n">{{.Velocity}}</td><td class="n">{{.Steps}}</td></tr>{{end}}</tbody>
+</table>
+{{end}}{{with .ObjectsNote}}<p class="note">{{.}}</p>
+{{end}}{{with .NEES}}<h3>NEES</h3>
 {{.}}{{end}}
+{{with .NIS}}<h3>NIS</h3>
+{{.}}{{end}}
+{{with .NISLine}}<p class="note">{{.}}</p>
+{{end}}
 </div>
 </section>
 {{end}}<p class="note">Rendered by trackgate from a result file; this page needs no network access.</p>

@@ -163,6 +163,11 @@ func (t *term) details(sc *result.Scenario) {
 	if more > 0 {
 		t.printf("\n%s: %s\n", t.paint(ansiBold, sc.Name), moreRuns(more))
 	}
+	if sc.Status != result.Pass && sc.Status != result.Tie {
+		if line, ok := splitOf(sc); ok {
+			t.printf("\n%s metrics: %s\n", t.paint(ansiBold, sc.Name), line)
+		}
+	}
 	for _, g := range sc.Gates {
 		if g.Status == result.Pass || g.Status == result.Tie {
 			continue

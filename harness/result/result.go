@@ -343,6 +343,61 @@ type RunMetrics struct {
 	// (the other metrics count them as usual). Zero, and left out of the
 	// file, when there were none.
 	NEESSkipped int `json:"nees_skipped,omitempty"`
+	// GOSPALocalisation, GOSPAMissed and GOSPAFalse split each step's
+	// GOSPA in its p-th power (α = 2), parallel to GOSPA:
+	//
+	//	GOSPA[k]ᵖ = GOSPALocalisation[k] + GOSPAMissed[k] + GOSPAFalse[k],
+	//
+	// the localisation part being Σ dᵖ over the matched pairs (d < c), the
+	// missed part (cᵖ/2)·(objects left unmatched) and the false part
+	// (cᵖ/2)·(tracks left unmatched), in the unit of the positions to the
+	// power p (m² for p = 2). Empty in results written before they were
+	// recorded.
+	GOSPALocalisation []float64 `json:"gospa_localisation,omitempty"`
+	GOSPAMissed       []float64 `json:"gospa_missed,omitempty"`
+	GOSPAFalse        []float64 `json:"gospa_false,omitempty"`
+	// MeanGOSPALocalisation, MeanGOSPAMissed and MeanGOSPAFalse are the
+	// time averages of the three parts; they add up to the time average
+	// of GOSPAᵖ (not to MeanGOSPAᵖ).
+	MeanGOSPALocalisation float64 `json:"mean_gospa_localisation,omitempty"`
+	MeanGOSPAMissed       float64 `json:"mean_gospa_missed,omitempty"`
+	MeanGOSPAFalse        float64 `json:"mean_gospa_false,omitempty"`
+	// OSPA is the OSPA distance per step, with the order p and cut-off c
+	// of GOSPA, on the same position components; parallel to GOSPA.
+	// MeanOSPA is its time average.
+	OSPA     []float64 `json:"ospa,omitempty"`
+	MeanOSPA float64   `json:"mean_ospa,omitempty"`
+	// Objects holds the errors of each true object, sorted by object id:
+	// the objects that some track covered at least once.
+	Objects []ObjectError `json:"objects,omitempty"`
+	// NIS is the average NIS over the samples of each step that has one
+	// (steps without are left out); NISSamples holds, for every step (none
+	// left out), the NIS samples in frame order. A sample is taken for a
+	// track matched to an object that reports the detection it was updated
+	// with and reported a covariance at the previous step: ν = z − H x⁻
+	// and S = H P⁻ Hᵀ + R, with (x⁻, P⁻) the scenario model's prediction
+	// of the track's own previous estimate, and NIS = νᵀ S⁻¹ ν. MeanNIS is
+	// the mean of all samples and NISSamplesInBand the fraction of them
+	// inside the two-sided 95 % chi-square interval for meas_dim degrees
+	// of freedom. All are empty or zero for a tracker that reports no
+	// associations or no covariances.
+	NIS              []float64   `json:"nis,omitempty"`
+	NISSamples       [][]float64 `json:"nis_samples,omitempty"`
+	NISSamplesInBand float64     `json:"nis_samples_in_band,omitempty"`
+}
+
+// ObjectError is the accuracy of the estimates of one true object over
+// one run (or, in a scenario's summary, pooled over its runs).
+type ObjectError struct {
+	Object string `json:"object"`
+	// RMSEPosition is √(mean over Steps of ‖p − p̂‖²) on the position
+	// components, RMSEVelocity likewise on the velocity components (0 when
+	// the state has none).
+	RMSEPosition float64 `json:"rmse_position"`
+	RMSEVelocity float64 `json:"rmse_velocity"`
+	// Steps is the number of steps on which a track was mapped to the
+	// object (summed over runs in a summary).
+	Steps int `json:"steps"`
 }
 
 // Metrics summarises a scenario's metrics over its runs.
@@ -381,6 +436,37 @@ type Metrics struct {
 	PositionRMSE float64 `json:"position_rmse"`
 	IDSwitches   int     `json:"id_switches"`
 	FalseTracks  int     `json:"false_tracks"`
+	// GOSPALocalisation, GOSPAMissed and GOSPAFalse are the per-step parts
+	// of GOSPAᵖ (see RunMetrics) averaged over runs, parallel to GOSPA;
+	// MeanGOSPALocalisation, MeanGOSPAMissed and MeanGOSPAFalse the means
+	// over runs of the runs' time averages.
+	GOSPALocalisation     []float64 `json:"gospa_localisation,omitempty"`
+	GOSPAMissed           []float64 `json:"gospa_missed,omitempty"`
+	GOSPAFalse            []float64 `json:"gospa_false,omitempty"`
+	MeanGOSPALocalisation float64   `json:"mean_gospa_localisation,omitempty"`
+	MeanGOSPAMissed       float64   `json:"mean_gospa_missed,omitempty"`
+	MeanGOSPAFalse        float64   `json:"mean_gospa_false,omitempty"`
+	// OSPA is the per-step OSPA averaged over runs, MeanOSPA the mean over
+	// runs of the runs' time averages.
+	OSPA     []float64 `json:"ospa,omitempty"`
+	MeanOSPA float64   `json:"mean_ospa,omitempty"`
+	// Objects pools each object's errors over the runs: RMSE² weighted by
+	// the runs' step counts, Steps summed.
+	Objects []ObjectError `json:"objects,omitempty"`
+	// NIS, NISSteps, NISLowByStep, NISHighByStep, NISConfidence and
+	// NISInBand are to the runs' NIS samples what the NEES fields are to
+	// the NEES samples, with meas_dim degrees of freedom per sample.
+	NIS            []float64 `json:"nis,omitempty"`
+	NISSteps       []int     `json:"nis_steps,omitempty"`
+	NISLowByStep   []float64 `json:"nis_low_by_step,omitempty"`
+	NISHighByStep  []float64 `json:"nis_high_by_step,omitempty"`
+	NISConfidence  float64   `json:"nis_confidence,omitempty"`
+	NISInBand      float64   `json:"nis_in_band,omitempty"`
+	// MeanNIS is the mean of every NIS sample of every run, and
+	// NISSamplesInBand the fraction of them inside the two-sided 95 %
+	// chi-square interval for meas_dim degrees of freedom.
+	MeanNIS          float64 `json:"mean_nis,omitempty"`
+	NISSamplesInBand float64 `json:"nis_samples_in_band,omitempty"`
 }
 
 // Gate is one statistical gate and its decision.

@@ -3,6 +3,7 @@ package runner
 import (
 	"fmt"
 	"math"
+	"sort"
 
 	"trackgate/harness/config"
 	"trackgate/harness/metrics"
@@ -94,8 +95,11 @@ func Judge(s *result.Suite, cfg config.Config) error {
 // Judge); nil when no run has metrics.
 func summarise(sc *result.Scenario) *result.Metrics {
 	out := &result.Metrics{}
-	var gsum, nees [][]float64
+	var gsum, nees, nis, locs, misses, falses, ospas [][]float64
 	rmse2 := 0.0
+	objs := map[string]*objectPool{}
+	var objOrder []string
+	nisCount, nisInside := 0, 0
 	for _, r := range sc.Runs {
 		m := r.Metrics
 		if m == nil {
@@ -103,6 +107,44 @@ func summarise(sc *result.Scenario) *result.Metrics {
 		}
 		out.Runs++
 		out.MeanGOSPA += m.MeanGOSPA
+		out.MeanGOSPALocalisation += m.MeanGOSPALocalisation
+		out.MeanGOSPAMissed += m.MeanGOSPAMissed
+		out.MeanGOSPAFalse += m.MeanGOSPAFalse
+		out.MeanOSPA += m.MeanOSPA
+		locs = appendSteps(locs, m.GOSPALocalisation)
+		misses = appendSteps(misses, m.GOSPAMissed)
+		falses = appendSteps(falses, m.GOSPAFalse)
+		ospas = appendSteps(ospas, m.OSPA)
+		for _, o := range m.Objects {
+			p := objs[o.Object]
+			if p == nil {
+				p = &objectPool{}
+				objs[o.Object] = p
+				objOrder = append(objOrder, o.Object)
+			}
+			w := float64(o.Steps)
+			p.pos2 += w * float64(o.RMSEPosition*o.RMSEPosition)
+			p.vel2 += w * float64(o.RMSEVelocity*o.RMSEVelocity)
+			p.steps += o.Steps
+		}
+		if len(m.NISSamples) > 0 && sc.MeasDim > 0 {
+			lo, hi := metrics.Interval(sc.MeasDim, 1, NISConfidence)
+			for _, vals := range m.NISSamples {
+				for _, v := range vals {
+					out.MeanNIS += v
+					nisCount++
+					if v >= lo && v <= hi {
+						nisInside++
+					}
+				}
+			}
+		}
+		for k, v := range m.NISSamples {
+			for len(nis) <= k {
+				nis = append(nis, nil)
+			}
+			nis[k] = append(nis[k], v...)
+		}
 		out.IDSwitches += m.IDSwitches
 		out.FalseTracks += m.FalseTracks
 		rmse2 += m.PositionRMSE * m.PositionRMSE
@@ -122,10 +164,45 @@ func summarise(sc *result.Scenario) *result.Metrics {
 	if out.Runs == 0 {
 		return nil
 	}
-	out.MeanGOSPA /= float64(out.Runs)
-	out.PositionRMSE = math.Sqrt(rmse2 / float64(out.Runs))
+	runs := float64(out.Runs)
+	out.MeanGOSPA /= runs
+	out.MeanGOSPALocalisation /= runs
+	out.MeanGOSPAMissed /= runs
+	out.MeanGOSPAFalse /= runs
+	out.MeanOSPA /= runs
+	out.PositionRMSE = math.Sqrt(rmse2 / runs)
 	for _, gs := range gsum {
 		out.GOSPA = append(out.GOSPA, mean(gs))
+	}
+	out.GOSPALocalisation = stepMeans(locs)
+	out.GOSPAMissed = stepMeans(misses)
+	out.GOSPAFalse = stepMeans(falses)
+	out.OSPA = stepMeans(ospas)
+	sort.Strings(objOrder)
+	for _, id := range objOrder {
+		p := objs[id]
+		if p.steps == 0 {
+			continue
+		}
+		w := float64(p.steps)
+		out.Objects = append(out.Objects, result.ObjectError{Object: id,
+			RMSEPosition: math.Sqrt(p.pos2 / w), RMSEVelocity: math.Sqrt(p.vel2 / w), Steps: p.steps})
+	}
+	if nisCount > 0 {
+		out.MeanNIS /= float64(nisCount)
+		out.NISSamplesInBand = float64(nisInside) / float64(nisCount)
+		if cons, err := metrics.CheckConsistency(nis, sc.MeasDim, NISConfidence); err == nil && cons.Judged > 0 {
+			for _, st := range cons.Steps {
+				if st.Count > 0 {
+					out.NIS = append(out.NIS, st.Mean)
+					out.NISSteps = append(out.NISSteps, st.Step)
+					out.NISLowByStep = append(out.NISLowByStep, st.Lo)
+					out.NISHighByStep = append(out.NISHighByStep, st.Hi)
+				}
+			}
+			out.NISConfidence = NISConfidence
+			out.NISInBand = cons.InsideFraction
+		}
 	}
 	cons, err := metrics.CheckConsistency(nees, sc.StateDim, NEESConfidence)
 	if err == nil && cons.Judged > 0 {
@@ -157,6 +234,33 @@ func summarise(sc *result.Scenario) *result.Metrics {
 		}
 		out.NEESConfidence = NEESConfidence
 		out.NEESInBand = cons.InsideFraction
+	}
+	return out
+}
+
+// objectPool accumulates one object's squared errors over runs, weighted
+// by the runs' step counts.
+type objectPool struct {
+	pos2, vel2 float64
+	steps      int
+}
+
+// appendSteps appends each value of series to its step's list in acc.
+func appendSteps(acc [][]float64, series []float64) [][]float64 {
+	for k, v := range series {
+		for len(acc) <= k {
+			acc = append(acc, nil)
+		}
+		acc[k] = append(acc[k], v)
+	}
+	return acc
+}
+
+// stepMeans returns the mean of each step's list; nil for none.
+func stepMeans(acc [][]float64) []float64 {
+	var out []float64
+	for _, vs := range acc {
+		out = append(out, mean(vs))
 	}
 	return out
 }

@@ -3,6 +3,7 @@ package runner
 import (
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 	"sort"
 
@@ -11,6 +12,7 @@ import (
 	"trackgate/harness/metrics"
 	"trackgate/harness/mot"
 	"trackgate/harness/result"
+	"trackgate/reference/kalman"
 )
 
 // NEESConfidence is the probability of the two-sided chi-square band the
@@ -30,6 +32,9 @@ type runScore struct {
 	// definite, left out of the NEES; firstSkip describes the first.
 	skipped   int
 	firstSkip string
+	// mapping is the per-step GOSPA matching of track names to object ids
+	// ("" for a false track), kept for the NIS (addNIS).
+	mapping []map[string]string
 }
 
 // withoutSingular returns frames in which every track mapped to a live
@@ -120,8 +125,15 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 	params := metrics.Params{Order: p, Cutoff: c, Components: pos}
 	var ws metrics.Workspace
 	m := &result.RunMetrics{GOSPA: make([]float64, steps)}
+	if steps > 0 {
+		m.GOSPALocalisation = make([]float64, steps)
+		m.GOSPAMissed = make([]float64, steps)
+		m.GOSPAFalse = make([]float64, steps)
+		m.OSPA = make([]float64, steps)
+	}
 	mapping := make([]map[string]string, steps)
-	sum := 0.0
+	sum, ospaSum := 0.0, 0.0
+	var locSum, missSum, falseSum float64
 	for k := 0; k < steps; k++ {
 		truth := run.Truth[k]
 		x := make([][]float64, len(truth.Objects))
@@ -148,9 +160,23 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 			}
 		}
 		mapping[k] = mp
+		m.GOSPALocalisation[k], m.GOSPAMissed[k], m.GOSPAFalse[k] = g.Localisation, g.Missed, g.False
+		locSum += g.Localisation
+		missSum += g.Missed
+		falseSum += g.False
+		// After the matching above has been read: OSPA reuses ws.
+		o, err := ws.OSPA(x, y, params)
+		if err != nil {
+			return &runScore{err: fmt.Errorf("step %d: %v", k, err)}
+		}
+		m.OSPA[k] = o.Value
+		ospaSum += o.Value
 	}
 	if steps > 0 {
-		m.MeanGOSPA = sum / float64(steps)
+		n := float64(steps)
+		m.MeanGOSPA = sum / n
+		m.MeanGOSPALocalisation, m.MeanGOSPAMissed, m.MeanGOSPAFalse = locSum/n, missSum/n, falseSum/n
+		m.MeanOSPA = ospaSum / n
 	}
 	// NEES needs a positive definite covariance; the protocol admits any
 	// symmetric one (a tracker may report zeros for a state it holds
@@ -164,7 +190,14 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 	m.IDSwitches, m.TrackBreaks, m.FalseTracks = sc.Switches, sc.Breaks, sc.FalseTracks
 	m.MissedObjects, m.PositionRMSE = sc.MissedSteps, sc.PositionRMSE
 	m.NEESSamples = neesSamples(sc.NEES, steps)
-	rs := &runScore{metrics: m, nees: sc.NEES}
+	for _, o := range sc.Objects {
+		if o.Covered == 0 {
+			continue
+		}
+		m.Objects = append(m.Objects, result.ObjectError{Object: o.Object,
+			RMSEPosition: o.PositionRMSE, RMSEVelocity: o.VelocityRMSE, Steps: o.Covered})
+	}
+	rs := &runScore{metrics: m, nees: sc.NEES, mapping: mapping}
 	rs.whole = map[string]float64{
 		MetricMeanGOSPA: m.MeanGOSPA, MetricPositionRMSE: m.PositionRMSE,
 		MetricIDSwitches: float64(m.IDSwitches), MetricTrackBreaks: float64(m.TrackBreaks),
@@ -207,6 +240,12 @@ func (s *settings) scoreJob(j *job) {
 	n := j.sc.spec.Model.StateDim
 	j.score = score(j.run, j.res.Frames, j.sc.pos, j.sc.vel, s.order, s.cutoff, n)
 	j.refSc = score(j.run, j.ex.Frames, j.sc.pos, j.sc.vel, s.order, s.cutoff, n)
+	if j.score.err == nil {
+		j.score.err = addNIS(j.score, j.sc.spec.Model, j.run.Scans, j.res.Frames)
+	}
+	if j.refSc.err == nil {
+		j.refSc.err = addNIS(j.refSc, j.sc.spec.Model, j.run.Scans, j.ex.Frames)
+	}
 	if j.score.err != nil {
 		j.out.Checks = append(j.out.Checks, result.Check{Name: "metrics", Status: result.Error,
 			Message: fmt.Sprintf("the tracker's metrics could not be computed: %v", j.score.err)})
@@ -293,4 +332,109 @@ func valuesOf(m map[string]float64) []result.Value {
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Metric < out[j].Metric })
 	return out
+}
+
+// NISConfidence is the probability of the two-sided chi-square interval
+// NIS samples and their per-step averages are judged against (common
+// practice: 95 %).
+const NISConfidence = 0.95
+
+// addNIS fills the NIS series of rs from frames, the frames rs was scored
+// on, under model and the run's scans. At step k ≥ 1, a track mapped to an
+// object (rs.mapping) that reports the detection it was updated with, and
+// that reported a covariance under the same name at step k−1, gives one
+// sample: the track's previous estimate (x, P) is predicted with the
+// model, x⁻ = F x and P⁻ = F P Fᵀ + Q, projected, ẑ = H x⁻ and
+// S = H P⁻ Hᵀ + R, and NIS = νᵀ S⁻¹ ν with ν = z − ẑ for the detection z
+// the track named. This is the innovation the Kalman update of the
+// track's own state with its own choice of detection would see; for the
+// reference's frames it is the reference's own NIS. A prediction whose S
+// is not positive definite, or a detection id that is not in the scan,
+// gives no sample (the association checks report the latter). MeanNIS is
+// the mean of all samples, NISSamplesInBand the fraction inside
+// metrics.Interval(m, 1, NISConfidence).
+//
+// References:
+//   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications
+//     to Tracking and Navigation", Wiley, 2001, §5.4.2 (the NIS, χ²_m for a
+//     consistent filter) and §5.2 (the innovation and its covariance).
+func addNIS(rs *runScore, model mot.Model, scans []mot.Scan, frames []mot.Frame) error {
+	m := rs.metrics
+	steps := len(rs.mapping)
+	if model.MeasDim < 1 || model.StateDim < 1 {
+		return nil
+	}
+	filt, err := kalman.New(model)
+	if err != nil {
+		return fmt.Errorf("NIS: %v", err)
+	}
+	n := model.StateDim
+	xp, pp := make([]float64, n), make([]float64, n*n)
+	var pr kalman.Projection
+	samples := make([][]float64, steps)
+	total := 0
+	for k := 1; k < steps && k < len(frames) && k < len(scans); k++ {
+		prev := make(map[string]mot.Estimate, len(frames[k-1].Tracks))
+		for _, e := range frames[k-1].Tracks {
+			prev[e.Track] = e
+		}
+		for _, e := range frames[k].Tracks {
+			if !e.HasDetection || e.Detection == mot.NoDetection || rs.mapping[k][e.Track] == "" {
+				continue
+			}
+			pe, ok := prev[e.Track]
+			if !ok || pe.Cov.Rows != n || pe.Cov.Cols != n || len(pe.Mean) != n {
+				continue
+			}
+			z := detectionZ(scans[k], e.Detection)
+			if len(z) != model.MeasDim {
+				continue
+			}
+			filt.PredictTo(xp, pp, pe.Mean, pe.Cov.Data)
+			if err := filt.ProjectTo(&pr, xp, pp); err != nil {
+				continue
+			}
+			v := pr.Distance2(z)
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				continue
+			}
+			samples[k] = append(samples[k], v)
+			total++
+		}
+	}
+	if total == 0 {
+		return nil
+	}
+	lo, hi := metrics.Interval(model.MeasDim, 1, NISConfidence)
+	m.NISSamples = make([][]float64, steps)
+	sum, inside := 0.0, 0
+	for k, vals := range samples {
+		m.NISSamples[k] = append([]float64{}, vals...)
+		if len(vals) == 0 {
+			continue
+		}
+		s := 0.0
+		for _, v := range vals {
+			s += v
+			sum += v
+			if v >= lo && v <= hi {
+				inside++
+			}
+		}
+		m.NIS = append(m.NIS, s/float64(len(vals)))
+	}
+	m.MeanNIS = sum / float64(total)
+	m.NISSamplesInBand = float64(inside) / float64(total)
+	return nil
+}
+
+// detectionZ returns the measurement of the detection with the given id in
+// scan, nil when there is none.
+func detectionZ(scan mot.Scan, id int) []float64 {
+	for _, d := range scan.Detections {
+		if d.ID == id {
+			return d.Z
+		}
+	}
+	return nil
 }
