@@ -456,12 +456,12 @@ type Metrics struct {
 	// NIS, NISSteps, NISLowByStep, NISHighByStep, NISConfidence and
 	// NISInBand are to the runs' NIS samples what the NEES fields are to
 	// the NEES samples, with meas_dim degrees of freedom per sample.
-	NIS            []float64 `json:"nis,omitempty"`
-	NISSteps       []int     `json:"nis_steps,omitempty"`
-	NISLowByStep   []float64 `json:"nis_low_by_step,omitempty"`
-	NISHighByStep  []float64 `json:"nis_high_by_step,omitempty"`
-	NISConfidence  float64   `json:"nis_confidence,omitempty"`
-	NISInBand      float64   `json:"nis_in_band,omitempty"`
+	NIS           []float64 `json:"nis,omitempty"`
+	NISSteps      []int     `json:"nis_steps,omitempty"`
+	NISLowByStep  []float64 `json:"nis_low_by_step,omitempty"`
+	NISHighByStep []float64 `json:"nis_high_by_step,omitempty"`
+	NISConfidence float64   `json:"nis_confidence,omitempty"`
+	NISInBand     float64   `json:"nis_in_band,omitempty"`
 	// MeanNIS is the mean of every NIS sample of every run, and
 	// NISSamplesInBand the fraction of them inside the two-sided 95 %
 	// chi-square interval for meas_dim degrees of freedom.
