@@ -4,6 +4,7 @@ import (
 	"encoding/xml"
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 
 	"trackgate/harness/result"
@@ -114,6 +115,25 @@ func junitScenario(sc *result.Scenario, common []xmlProperty) xmlSuite {
 		xmlProperty{"scenario.file", sc.File},
 		xmlProperty{"scenario.hash", sc.Hash},
 	)
+	if m := sc.Metrics; m != nil && (len(m.GOSPALocalisation) > 0 || len(m.OSPA) > 0) {
+		// The summary's means, exact, for CI dashboards that chart
+		// properties; GOSPAᵖ = localisation + missed + false on average.
+		g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+		xs.Properties = append(xs.Properties,
+			xmlProperty{"metrics.mean_gospa", g(m.MeanGOSPA)},
+			xmlProperty{"metrics.mean_gospa_localisation", g(m.MeanGOSPALocalisation)},
+			xmlProperty{"metrics.mean_gospa_missed", g(m.MeanGOSPAMissed)},
+			xmlProperty{"metrics.mean_gospa_false", g(m.MeanGOSPAFalse)},
+			xmlProperty{"metrics.mean_ospa", g(m.MeanOSPA)},
+		)
+		if len(m.NIS) > 0 {
+			xs.Properties = append(xs.Properties,
+				xmlProperty{"metrics.mean_nis", g(m.MeanNIS)},
+				xmlProperty{"metrics.nis_samples_in_band", g(m.NISSamplesInBand)},
+				xmlProperty{"metrics.nis_steps_in_band", g(m.NISInBand)},
+			)
+		}
+	}
 	class := "trackgate." + sc.Name
 	for ri := range sc.Runs {
 		r := &sc.Runs[ri]

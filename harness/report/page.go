@@ -110,7 +110,8 @@ svg .band { fill:#2e7d4f; fill-opacity:.12; stroke:#2e7d4f; stroke-opacity:.4; }
 {{with .GOSPA}}<h3>GOSPA and OSPA</h3>
 {{.}}{{end}}
 {{with .SplitLine}}<p class="note">{{.}}</p>
-{{end}}{{with .Split}}{{.}}{{end}}
+{{end}}{{with .Split}}<h3>GOSPA split</h3>
+{{.}}{{end}}
 {{with .Objects}}<h3>Per-object RMSE</h3>
 <table>
 <thead><tr><th>Object</th><th class="n">RMSE position</th><th class="n">RMSE velocity</th><th class="n">Steps</th></tr></thead>

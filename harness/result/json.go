@@ -98,7 +98,9 @@ const (
 // between 0 and MaxRunsPlanned, run indices ≥ 0 and below runs_planned
 // when it is known; per-step NEES bounds (nees_low_by_step,
 // nees_high_by_step) either both absent or both as long as nees, and
-// nees_steps absent or as long as nees, ascending and ≥ 0;
+// nees_steps absent or as long as nees, ascending and ≥ 0; the NIS
+// bounds and steps (nis_low_by_step, nis_high_by_step, nis_steps) all
+// absent or all as long as nis, the steps ascending and ≥ 0;
 // well-formed gate rules. Errors are fieldErrors, so
 // that Unmarshal names the line and column.
 func validate(s *Suite) error {
@@ -145,6 +147,21 @@ func validate(s *Suite) error {
 			for k, st := range m.NEESSteps {
 				if st < 0 || (k > 0 && st <= m.NEESSteps[k-1]) {
 					return fieldErr(fmt.Sprintf("%s.metrics.nees_steps[%d]", p, k), "expected a step ≥ 0 after the previous one, got %d", st)
+				}
+			}
+		}
+		if m := sc.Metrics; m != nil && (len(m.NISLowByStep) > 0 || len(m.NISHighByStep) > 0 || len(m.NISSteps) > 0) {
+			for _, f := range []struct {
+				name string
+				n    int
+			}{{"nis_low_by_step", len(m.NISLowByStep)}, {"nis_high_by_step", len(m.NISHighByStep)}, {"nis_steps", len(m.NISSteps)}} {
+				if f.n != len(m.NIS) {
+					return fieldErr(p+".metrics."+f.name, "expected one entry per step of nis (%d), got %d", len(m.NIS), f.n)
+				}
+			}
+			for k, st := range m.NISSteps {
+				if st < 0 || (k > 0 && st <= m.NISSteps[k-1]) {
+					return fieldErr(fmt.Sprintf("%s.metrics.nis_steps[%d]", p, k), "expected a step ≥ 0 after the previous one, got %d", st)
 				}
 			}
 		}
