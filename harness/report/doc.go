@@ -8,7 +8,11 @@
 // Terminal writes one verdict line per scenario (status word, name, runs
 // that passed out of runs held, mean GOSPA), then for each run that did not
 // pass its checks' first divergence, worst differences and ties, the gates
-// that failed, and faults with the tail of the tracker's stderr. ANSI
+// that failed, and faults with the tail of the tracker's stderr; a scenario
+// that did not pass also gets a metrics line with the mean GOSPA, the time
+// averages of the three parts of GOSPAᵖ (localisation + missed + false,
+// which add up to the mean of GOSPAᵖ, not to the mean GOSPA to the p), the
+// mean OSPA and, when recorded, the mean NIS and its fractions in band. ANSI
 // colour is used only when TerminalOptions.Colour is set; the command sets
 // it when standard output is a terminal and NO_COLOR is unset
 // (https://no-color.org). Control characters from the tracker (stderr,
@@ -22,7 +26,9 @@
 // "trackgate.<scenario>" (stable and unique, so shard reports merge and CI
 // history follows a test), plus one per gate. A failing check becomes
 // <failure type="regression|tie-breaking">, a fault <error type="fault:...">,
-// a skip <skipped>. Properties carry the seed, platform, tracker and shard.
+// a skip <skipped>. Properties carry the seed, platform, tracker and shard,
+// and each scenario's summary means (metrics.mean_gospa, the three parts,
+// metrics.mean_ospa and the NIS figures) exactly, when recorded.
 // Counts are recomputed from the cases. Characters that XML 1.0 forbids are
 // replaced by U+FFFD, and a tracker's stderr is cut to its last 200 lines
 // (64 KiB). No timestamp or host name is written, so the same result always
@@ -30,7 +36,8 @@
 //
 // # Markdown
 //
-// Markdown writes a table of scenarios and then the failures, sized for a
+// Markdown writes a table of scenarios (with the mean GOSPA, the mean
+// parts of GOSPAᵖ and the mean OSPA) and then the failures, sized for a
 // GitHub job summary (1 MiB per step) or a review comment (GitHub caps a
 // comment at 65536 characters); MarkdownOptions.Limit bounds the output and
 // a note says what was cut.
@@ -41,8 +48,10 @@
 // resources. For each scenario it plots one run (the first that did not
 // pass, else run 0): truth, detections, reference and tracker estimates
 // with 2-sigma ellipses in the plane (or position against time for 1-D
-// scenarios), the association timeline, GOSPA over time and the average
-// NEES over time with its acceptance band. The band of step k is that of
+// scenarios), the association timeline, GOSPA and the run's OSPA over time,
+// the run's three parts of GOSPAᵖ over time, a table of each object's
+// position and velocity RMSE (pooled over runs), and the average NEES and
+// the average NIS over time with their acceptance bands. The band of step k is that of
 // the M_k values averaged there (runs × matched tracks), drawn as a
 // stepped band when the result records the bounds step by step, else the
 // one band shared by every step; NEES values are placed at their steps
@@ -60,7 +69,10 @@
 //   - P. S. Heckbert, "Nice Numbers for Graph Labels", Graphics Gems,
 //     Academic Press, 1990, pp. 61–63.
 //   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications
-//     to Tracking and Navigation", Wiley, 2001, §5.4 (NEES and its
-//     two-sided acceptance interval).
+//     to Tracking and Navigation", Wiley, 2001, §5.4 (NEES, NIS and their
+//     two-sided acceptance intervals).
+//   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric for
+//     evaluating multi-object tracking algorithms", IEEE Trans. Signal
+//     Processing 68, 2020 (the GOSPA parts).
 //   - JUnit XML: Apache Ant JUnit task output; GitLab "Unit test reports".
 package report

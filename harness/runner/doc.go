@@ -154,10 +154,32 @@
 // tracks that report covariances; a covariance that is not positive
 // definite (the protocol admits any symmetric one) leaves its sample out of
 // the NEES, and the run's metrics check says how many (nees_skipped) while
-// GOSPA and the rest are kept. Per scenario: the mean GOSPA per step over
-// runs, the average NEES per step judged against the chi-square band at
-// 95 % of its own sample count (runs × matched tracks at the step; see
-// Judge) and the fraction of steps inside it. Gates from the project file
+// GOSPA and the rest are kept. Each step's GOSPA is also stored split in
+// its p-th power, GOSPAᵖ = localisation + missed + false (Σ dᵖ over the
+// matched pairs, (cᵖ/2) per unmatched object, (cᵖ/2) per unmatched track;
+// García-Fernández, Rahmathullah, Svensson 2020, α = 2), with the time
+// averages of the three parts; OSPA per step and its time average use the
+// same order p and cut-off c (metrics.order and metrics.cutoff of the
+// project file serve both distances; there is no separate OSPA setting);
+// the per-object position and velocity RMSE over the steps some track
+// covers the object come from metrics.ScoreRun. The protocol carries no
+// innovations, so the NIS of a run is computed from the tracker's own
+// reports: at step k, for a track matched to an object that names the
+// detection z it was updated with and reported a covariance at step k−1,
+// the model predicts that previous estimate, x⁻ = F x, P⁻ = F P Fᵀ + Q,
+// and NIS = νᵀ S⁻¹ ν with ν = z − H x⁻ and S = H P⁻ Hᵀ + R: what the
+// Kalman update of the track's own state with its own choice would see
+// (for the reference's frames, exactly the reference's own NIS). The run
+// stores the samples per step, their per-step averages, MeanNIS and the
+// fraction of samples inside the two-sided 95 % χ²_m interval, m the
+// measurement dimension. A tracker that reports no associations or no
+// covariances has no NIS. None of these is a whole-run value: the golden
+// metrics files and the gates are unchanged. Per scenario: the mean GOSPA
+// per step over runs, the average NEES per step judged against the
+// chi-square band at 95 % of its own sample count (runs × matched tracks
+// at the step; see Judge) and the fraction of steps inside it; likewise
+// for the NIS with m degrees of freedom per sample; the split and OSPA
+// averaged over runs; each object's RMSE pooled over runs. Gates from the project file
 // are judged on per-run values: an absolute gate on the mean over runs, a
 // paired gate (metrics.Paired) against a baseline on the same seeds: the
 // tracker's blessed values when every run has them (goldens compared), the
@@ -192,9 +214,15 @@
 // References:
 //   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
 //     optimal sub-pattern assignment metric", FUSION 2017 (GOSPA, p = 2, α = 2).
+//   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric for
+//     evaluating multi-object tracking algorithms", IEEE Trans. Signal
+//     Processing 68, 2020 (the localisation, missed and false parts).
+//   - D. Schuhmacher, B.-T. Vo, B.-N. Vo, "A consistent metric for performance
+//     evaluation of multi-object filters", IEEE Trans. Signal Processing
+//     56(8):3447–3457, 2008 (OSPA).
 //   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications to
 //     Tracking and Navigation", Wiley, 2001, §5.2 (Kalman update) and §5.4
-//     (NEES and its chi-square acceptance interval).
+//     (NEES and NIS and their chi-square acceptance intervals).
 //   - K. G. Murty, "An algorithm for ranking all the assignments in order of
 //     increasing cost", Operations Research 16(3):682–687, 1968 (the k best
 //     hypotheses whose margin decides a tie).

@@ -41,6 +41,16 @@ import (
 //	                 each remaining step's band, parallel to Metrics.NEES,
 //	                 and Metrics.NEESLow and NEESHigh the single band when
 //	                 every such step has the same M_k (else both are 0).
+//	GOSPA split:     per step and as time averages, the mean over runs
+//	                 of the runs' localisation, missed and false parts of
+//	                 GOSPAᵖ; OSPA likewise;
+//	Objects:         per object, √(Σ_runs steps·RMSE² / Σ_runs steps)
+//	                 for position and velocity, steps summed;
+//	NIS per step:    as NEES, from the runs' NISSamples, with meas_dim
+//	                 degrees of freedom per sample (NISSteps,
+//	                 NISLowByStep, NISHighByStep, NISInBand); MeanNIS the
+//	                 mean of every sample and NISSamplesInBand the fraction
+//	                 of samples inside the single-sample 95 % interval.
 //
 // An absolute gate compares the mean of the runs' values with its limit;
 // a paired gate (metrics.Paired) compares the runs' values with a baseline
