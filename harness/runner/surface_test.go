@@ -416,3 +416,33 @@ func TestSurfaceSummaryPools(t *testing.T) {
 	// §3.2 single-run table for n = 6) too.
 	eq("steps in band", m.NISInBand, 1)
 }
+
+// BenchmarkSurfaceScoreWithNIS measures the scoring of the reference's
+// frames of one run of a stock scenario: GOSPA with its split, OSPA,
+// ScoreRun and the NIS.
+func BenchmarkSurfaceScoreWithNIS(b *testing.B) {
+	spec, err := scenario.Load(scenarioFile("crossing-harbour-vessels"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	sm, err := sim.Prepare(spec)
+	if err != nil {
+		b.Fatal(err)
+	}
+	run := sm.Run(0)
+	ex, err := tracker.RunAll(tracker.Config{Model: spec.Model, Objects: objectsOf(spec), K: 4}, run)
+	if err != nil {
+		b.Fatal(err)
+	}
+	pos, vel := axes(spec)
+	b.ReportAllocs()
+	for b.Loop() {
+		rs := score(run, ex.Frames, pos, vel, 2, DefaultCutoff, spec.Model.StateDim)
+		if rs.err != nil {
+			b.Fatal(rs.err)
+		}
+		if err := addNIS(rs, spec.Model, run.Scans, ex.Frames); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
