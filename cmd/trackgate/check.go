@@ -84,7 +84,7 @@ func addCommon(fs *flag.FlagSet, withAgainst bool) *commonFlags {
 	f.name = fs.String("name", "", "the tracker's golden folder name (default: tracker.name of the project file)")
 	f.goldenRuns = fs.Int("golden-runs", 0, fmt.Sprintf("leading runs of each scenario that have golden files (0: golden_runs of the project file, else %d)", runner.DefaultGoldenRuns))
 	f.ci = fs.Bool("ci", false, "CI mode: never write into the golden folder, and a missing golden fails (also when CI=true)")
-	f.cutoff = fs.Float64("cutoff", 0, fmt.Sprintf("GOSPA and track pairing cut-off, metres (0: metrics.cutoff of the project file, else %g)", runner.DefaultCutoff))
+	f.cutoff = fs.Float64("cutoff", 0, fmt.Sprintf("GOSPA, OSPA and track pairing cut-off, metres (0: metrics.cutoff of the project file, else %g)", runner.DefaultCutoff))
 	return f
 }
 
