@@ -1,7 +1,6 @@
 package driver
 
 import (
-	"math"
 	"strconv"
 
 	"trackgate/harness/mot"
@@ -94,50 +93,9 @@ func (c *checker) psd(p mot.Mat) string {
 	return msg
 }
 
-// symmetricPSD tests p (n×n) with the tolerances of the package
-// documentation; work is scratch space.
+// symmetricPSD tests p (n×n) with protocol.CovarianceProblem's tolerances
+// for a positive semi-definite matrix; work is scratch space.
 func symmetricPSD(p mot.Mat, work *[]float64) (bool, string) {
-	n := p.Rows
-	s := 0.0
-	for _, v := range p.Data {
-		s = math.Max(s, math.Abs(v))
-	}
-	if s == 0 {
-		return true, ""
-	}
-	for i := 0; i < n; i++ {
-		for j := i + 1; j < n; j++ {
-			a, b := p.Data[i*n+j], p.Data[j*n+i]
-			if math.Abs(a-b) > 1e-9*s {
-				return false, "not symmetric: entry (" + itoa(i) + "," + itoa(j) + ") is " +
-					strconv.FormatFloat(a, 'g', -1, 64) + " but (" + itoa(j) + "," + itoa(i) + ") is " + strconv.FormatFloat(b, 'g', -1, 64)
-			}
-		}
-	}
-	if cap(*work) < n*n {
-		*work = make([]float64, n*n)
-	}
-	l := (*work)[:n*n]
-	shift := 1e-9 * float64(n) * s
-	// Cholesky–Banachiewicz on the lower triangle of p + shift·I.
-	for i := 0; i < n; i++ {
-		for j := 0; j <= i; j++ {
-			sum := p.Data[i*n+j]
-			if i == j {
-				sum += shift
-			}
-			for k := 0; k < j; k++ {
-				sum -= float64(l[i*n+k] * l[j*n+k])
-			}
-			if i == j {
-				if !(sum > 0) {
-					return false, "not positive semi-definite (Cholesky pivot " + itoa(i) + " is " + strconv.FormatFloat(sum-shift, 'g', 6, 64) + ")"
-				}
-				l[i*n+i] = math.Sqrt(sum)
-			} else {
-				l[i*n+j] = sum / l[j*n+j]
-			}
-		}
-	}
-	return true, ""
+	msg := protocol.CovarianceProblem(p, false, work)
+	return msg == "", msg
 }

@@ -142,11 +142,33 @@ func finite(field string, a mot.Mat) error {
 
 // covariance checks that the square matrix a is finite, symmetric and
 // positive semi-definite, or positive definite when definite is set, with
-// the tolerances of Validate.
+// the tolerances of CovarianceProblem.
 func covariance(field string, a mot.Mat, definite bool) error {
 	if err := finite(field, a); err != nil {
 		return err
 	}
+	var work []float64
+	if msg := CovarianceProblem(a, definite, &work); msg != "" {
+		return fieldErr(field, "%s", msg)
+	}
+	return nil
+}
+
+// CovarianceProblem says why the finite square matrix a is not a
+// covariance, or returns "" when it is one. With s = max |a_ij|:
+//
+//   - symmetric: |a_ij − a_ji| ≤ 1e-9·s for every i < j;
+//   - positive semi-definite: the Cholesky factorisation of a + 1e-9·n·s·I
+//     has only positive pivots (the shift absorbs round-off in a matrix
+//     that is singular in exact arithmetic); the zero matrix qualifies;
+//   - positive definite, when definite is set: the factorisation of a
+//     itself has pivots above 1e-12·s.
+//
+// The factorisation is Cholesky–Banachiewicz (G. H. Golub, C. F. Van Loan,
+// "Matrix Computations", 4th ed., 2013, §4.2); the tolerances are common
+// practice. work is scratch space, grown as needed and reused, so a caller
+// that keeps it checks without allocating.
+func CovarianceProblem(a mot.Mat, definite bool, work *[]float64) string {
 	n := a.Rows
 	s := 0.0
 	for _, v := range a.Data {
@@ -154,14 +176,14 @@ func covariance(field string, a mot.Mat, definite bool) error {
 	}
 	if s == 0 {
 		if definite {
-			return fieldErr(field, "all zero, want a positive definite matrix")
+			return "all zero, want a positive definite matrix"
 		}
-		return nil
+		return ""
 	}
 	for i := 0; i < n; i++ {
 		for j := i + 1; j < n; j++ {
 			if x, y := a.Data[i*n+j], a.Data[j*n+i]; math.Abs(x-y) > 1e-9*s {
-				return fieldErr(field, "not symmetric: entry (%d,%d) is %g but (%d,%d) is %g", i, j, x, j, i, y)
+				return fmt.Sprintf("not symmetric: entry (%d,%d) is %g but (%d,%d) is %g", i, j, x, j, i, y)
 			}
 		}
 	}
@@ -169,8 +191,11 @@ func covariance(field string, a mot.Mat, definite bool) error {
 	if definite {
 		shift, floor, want = 0, 1e-12*s, "positive definite"
 	}
+	if cap(*work) < n*n {
+		*work = make([]float64, n*n)
+	}
+	l := (*work)[:n*n]
 	// Cholesky–Banachiewicz on the lower triangle of a + shift·I.
-	l := make([]float64, n*n)
 	for i := 0; i < n; i++ {
 		for j := 0; j <= i; j++ {
 			sum := a.Data[i*n+j]
@@ -182,7 +207,7 @@ func covariance(field string, a mot.Mat, definite bool) error {
 			}
 			if i == j {
 				if !(sum > floor) {
-					return fieldErr(field, "not %s (Cholesky pivot %d is %.6g)", want, i, sum-shift)
+					return fmt.Sprintf("not %s (Cholesky pivot %d is %.6g)", want, i, sum-shift)
 				}
 				l[i*n+i] = math.Sqrt(sum)
 			} else {
@@ -190,5 +215,5 @@ func covariance(field string, a mot.Mat, definite bool) error {
 			}
 		}
 	}
-	return nil
+	return ""
 }
