@@ -71,13 +71,49 @@ func ThisPlatform() Platform {
 	return p
 }
 
-// ModuleVersion returns the main module's version from the build
-// information ("(devel)" for a local build, "" when unavailable).
+// Release is the version of this trackgate source tree. It is raised with
+// every change to what trackgate records or how it judges.
+const Release = "0.1.0"
+
+// ModuleVersion names the trackgate that is running, for golden headers and
+// results: the module version when the binary was built from a tagged
+// module ("v0.1.0"); otherwise Release, followed by "+" and the first 12
+// digits of the commit when the build recorded it (and "-dirty" when the
+// tree had changes), or by "+devel" when it did not (a build with
+// -buildvcs=false, or go run from a folder without version control).
 func ModuleVersion() string {
-	if bi, ok := debug.ReadBuildInfo(); ok {
-		return bi.Main.Version
+	bi, ok := debug.ReadBuildInfo()
+	if !ok {
+		return Release + "+devel"
 	}
-	return ""
+	return versionOf(bi)
+}
+
+// versionOf is ModuleVersion for given build information.
+func versionOf(bi *debug.BuildInfo) string {
+	if v := bi.Main.Version; v != "" && v != "(devel)" {
+		return v
+	}
+	var rev string
+	dirty := false
+	for _, s := range bi.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.modified":
+			dirty = s.Value == "true"
+		}
+	}
+	if rev == "" {
+		return Release + "+devel"
+	}
+	if len(rev) > 12 {
+		rev = rev[:12]
+	}
+	if dirty {
+		rev += "-dirty"
+	}
+	return Release + "+" + rev
 }
 
 // NewHeader returns the header of a golden written now by this binary: the
