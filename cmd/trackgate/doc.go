@@ -49,7 +49,8 @@ check runs the tracker (the --tracker command line, split into words as a
 POSIX shell would but with no shell and no expansion, or tracker.command of
 trackgate.yaml) on every run of the scenarios and compares it with the
 reference tracker (associations with their margins, one-step conformance,
-track counts, identities) and with the golden files, computes GOSPA, NEES
+track counts, identities) and with the golden files, computes GOSPA (and
+its localisation, missed and false parts), OSPA, NEES, NIS, per-object RMSE
 and identity metrics and judges the project's gates, then prints the report
 and writes --json, --junit, --markdown and --html files. Its exit codes:
 0 pass, ties allowed (a changed association where the reference's margin is
@@ -61,8 +62,9 @@ consecutive runs of a scenario, whatever -j; --runs is at most 100000. With
 CI=true or --ci nothing is written into the golden folder and a missing
 golden fails.
 
-bless records the goldens of the first runs of each scenario, rewriting only
-those outside their tolerance unless --all is given. explain shows one step
+bless records the goldens of the first runs of each scenario, and every
+run's whole-run metric values for the paired gate, rewriting only those
+outside their tolerance unless --all is given. explain shows one step
 as the reference sees it: predictions, detections, the gated cost matrix,
 the best hypotheses and the margin, and what the tracker did there.
 
