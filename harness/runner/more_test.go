@@ -110,18 +110,8 @@ func TestBlessPrunesOrphans(t *testing.T) {
 // TestCIModeLeavesActualOnlyInOut: in CI mode a failing golden's actual
 // output goes to the --out folder and nowhere else.
 func TestCIModeLeavesActualOnlyInOut(t *testing.T) {
-	root, out := t.TempDir(), t.TempDir()
-	files := []string{scenarioFile("tie-mirror-pair")}
-	blessInto(t, root, false, nil, files...)
-	p := filepath.Join(root, "tie-mirror-pair", "harbour-tracker", "run-0.jsonl")
-	f, err := golden.ReadFile(p)
-	if err != nil {
-		t.Fatal(err)
-	}
-	f.Frames[2].Tracks[1].Mean[2] -= 0.25
-	if err := golden.Write(p, f); err != nil {
-		t.Fatal(err)
-	}
+	root, files := tamperedGolden(t)
+	out := t.TempDir()
 	before := snapshot(t, root)
 	o := variantOptions("reference", files...)
 	o.GoldenDir, o.TrackerName, o.Against, o.CI, o.Out = root, "harbour-tracker", AgainstGolden, true, out
@@ -140,18 +130,7 @@ func TestCIModeLeavesActualOnlyInOut(t *testing.T) {
 // in CI mode and with no --out, still leaves the golden folder as it was:
 // explaining only looks.
 func TestExplainWritesNothing(t *testing.T) {
-	root := t.TempDir()
-	files := []string{scenarioFile("tie-mirror-pair")}
-	blessInto(t, root, false, nil, files...)
-	p := filepath.Join(root, "tie-mirror-pair", "harbour-tracker", "run-0.jsonl")
-	f, err := golden.ReadFile(p)
-	if err != nil {
-		t.Fatal(err)
-	}
-	f.Frames[2].Tracks[1].Mean[2] -= 0.25
-	if err := golden.Write(p, f); err != nil {
-		t.Fatal(err)
-	}
+	root, files := tamperedGolden(t)
 	before := snapshot(t, root)
 	o := variantOptions("reference", files...)
 	o.GoldenDir, o.TrackerName, o.Against = root, "harbour-tracker", AgainstBoth
@@ -163,4 +142,25 @@ func TestExplainWritesNothing(t *testing.T) {
 	if !equalSnap(before, snapshot(t, root)) {
 		t.Error("explain wrote into the golden folder")
 	}
+}
+
+// tamperedGolden blesses tie-mirror-pair into a new folder as
+// "harbour-tracker" and moves one blessed mean 0.25 m, far beyond any
+// tolerance, so the golden check of run 0 fails at step 2. It returns the
+// golden folder and the scenario files.
+func tamperedGolden(t *testing.T) (root string, files []string) {
+	t.Helper()
+	root = t.TempDir()
+	files = []string{scenarioFile("tie-mirror-pair")}
+	blessInto(t, root, false, nil, files...)
+	p := filepath.Join(root, "tie-mirror-pair", "harbour-tracker", "run-0.jsonl")
+	f, err := golden.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.Frames[2].Tracks[1].Mean[2] -= 0.25
+	if err := golden.Write(p, f); err != nil {
+		t.Fatal(err)
+	}
+	return root, files
 }
