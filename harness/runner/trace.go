@@ -112,8 +112,11 @@ func paths(frames []mot.Frame, pos []int) []result.Path {
 }
 
 // timeline says per step whether the tracker's associations agreed with
-// the reference's: "same", "tie" (changed where the reference's margin is
-// at most the ambiguity threshold) or "differs".
+// the reference's: "same"; "tie" when every cluster of the reference's step
+// that holds an object whose association changed has a margin within the
+// ambiguity threshold (the rule the verdicts apply, partsTied); "differs"
+// otherwise. A step without per-cluster structure is judged by the scan's
+// margin, which clusterParts then stands for.
 func (s *settings) timeline(j *job) []string {
 	if !j.res.Tracker.Association || j.names == nil {
 		return nil
@@ -122,16 +125,19 @@ func (s *settings) timeline(j *job) []string {
 	for k, f := range j.res.Frames {
 		d := &j.ex.Steps[k]
 		v := newView(d, f, j.names)
-		out[k] = "same"
+		var changed []string
 		for _, od := range d.Objects {
 			if i, ok := v.byObj[od.Object]; ok && f.Tracks[i].Detection != od.Detection {
-				if isTie(d.Margin, j.sc.tie) {
-					out[k] = "tie"
-				} else {
-					out[k] = "differs"
-				}
-				break
+				changed = append(changed, od.Object)
 			}
+		}
+		switch {
+		case len(changed) == 0:
+			out[k] = "same"
+		case partsTied(d, changed, j.sc.tie):
+			out[k] = "tie"
+		default:
+			out[k] = "differs"
 		}
 	}
 	return out
