@@ -28,20 +28,42 @@ import (
 //
 // Scenario summaries (Metrics, Gates) are computed by whoever fills a shard
 // over the runs that shard holds. When one shard holds all runs of a
-// scenario they are kept as they are. Otherwise the parts' Metrics are
-// pooled with run-count weights w_i = n_i/Σn (n_i = Metrics.Runs):
+// scenario they are kept as they are (copied). Otherwise the parts'
+// Metrics are pooled with run-count weights w_i = n_i/Σn (n_i =
+// Metrics.Runs):
 //
-//	series and means: m = Σ w_i m_i, step by step over the steps a part has;
+//	series:           m[k] = Σ w_i m_i[k] / Σ w_i, the sums over the parts
+//	                  that have step k (GOSPA, NEES, the GOSPA split
+//	                  GOSPALocalisation, GOSPAMissed, GOSPAFalse, OSPA, NIS);
+//	means:            m = Σ w_i m_i (MeanGOSPA; MeanGOSPALocalisation,
+//	                  MeanGOSPAMissed, MeanGOSPAFalse, MeanOSPA, MeanNIS and
+//	                  NISSamplesInBand over the parts that carry the
+//	                  series they summarise, weights renormalised);
 //	PositionRMSE:     sqrt(Σ w_i r_i²);
+//	Objects:          per object, sqrt(Σ s_i r_i² / Σ s_i) for position
+//	                  and velocity with s_i the part's Steps for the
+//	                  object, Steps = Σ s_i (by run counts n_i instead
+//	                  when a part gives the object no Steps);
 //	counts:           Σ c_i (IDSwitches, FalseTracks).
 //
 // These equal the whole-run values up to rounding when each part's values
-// are averages over its runs. The NEES band depends on the number of runs,
-// so NEESLow, NEESHigh, NEESConfidence and NEESInBand are kept only when
-// every part gives the same band, and dropped otherwise; the per-step
-// bounds (NEESLowByStep, NEESHighByStep) depend on each step's count,
-// which the parts' summaries do not carry, and are left out, as are the
-// steps of the NEES averages (NEESSteps), which are pooled by position.
+// are averages over its runs (GOSPA and its split, OSPA, their means,
+// PositionRMSE) or over step counts it records (Objects). The NEES and
+// NIS averages and MeanNIS and NISSamplesInBand are averages over samples,
+// whose counts the summaries do not carry: weighting them by runs is exact
+// when every run gives the same number of samples (at each step, for the
+// series), as when every run's tracks are matched alike. The NIS averages
+// are pooled by step when every part names their steps (NISSteps, then
+// the union of the parts' steps), by position otherwise.
+//
+// What depends on per-step sample counts cannot be pooled and is dropped:
+// the per-step bands NEESLowByStep, NEESHighByStep, NISLowByStep and
+// NISHighByStep, and with them NISConfidence and NISInBand (a note in
+// Suite.Notes says so when a part carried them); so are the steps of the
+// NEES averages (NEESSteps), which are pooled by position. The single NEES
+// band depends on the number of runs, so NEESLow, NEESHigh,
+// NEESConfidence and NEESInBand are kept only when every part gives the
+// same band, and dropped otherwise, with a note.
 // Gates decided on part of the runs cannot be combined: they are dropped,
 // and a note in Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
 // and gates again from the runs' own values (runner.Judge), which gives the
@@ -369,10 +391,13 @@ func mergeScenario(name string, suites []*Suite) (Scenario, []string, []string) 
 			}
 			gates += len(h.Gates)
 		}
-		var dropped bool
-		out.Metrics, dropped = poolMetrics(ms)
-		if dropped {
+		var drop pooled
+		out.Metrics, drop = poolMetrics(ms)
+		if drop.neesBand {
 			notes = append(notes, fmt.Sprintf("scenario %q: the shards' NEES bands differ (different run counts); the merged metrics carry no band", name))
+		}
+		if drop.stepBands {
+			notes = append(notes, fmt.Sprintf("scenario %q: the per-step NEES and NIS bands depend on each step's sample count, which the shards' summaries do not carry; the merged metrics carry none", name))
 		}
 		if gates > 0 {
 			notes = append(notes, fmt.Sprintf("scenario %q: %d gate decisions made on partial runs in the shards were dropped; evaluate gates on the merged metrics", name, gates))
@@ -398,41 +423,102 @@ func cloneMetrics(m *Metrics) *Metrics {
 	c.NEESSteps = slices.Clone(m.NEESSteps)
 	c.NEESLowByStep = slices.Clone(m.NEESLowByStep)
 	c.NEESHighByStep = slices.Clone(m.NEESHighByStep)
+	c.GOSPALocalisation = slices.Clone(m.GOSPALocalisation)
+	c.GOSPAMissed = slices.Clone(m.GOSPAMissed)
+	c.GOSPAFalse = slices.Clone(m.GOSPAFalse)
+	c.OSPA = slices.Clone(m.OSPA)
+	c.Objects = slices.Clone(m.Objects)
+	c.NIS = slices.Clone(m.NIS)
+	c.NISSteps = slices.Clone(m.NISSteps)
+	c.NISLowByStep = slices.Clone(m.NISLowByStep)
+	c.NISHighByStep = slices.Clone(m.NISHighByStep)
 	return &c
 }
 
+// pooled says what poolMetrics had to leave out.
+type pooled struct {
+	// neesBand: the parts disagreed on the single NEES band.
+	neesBand bool
+	// stepBands: some part carried per-step NEES or NIS bands (or a NIS
+	// band judgement), which depend on per-step sample counts the parts
+	// do not carry.
+	stepBands bool
+}
+
 // poolMetrics pools per-part metrics with run-count weights (see Merge).
-// dropped reports that the parts disagreed on the NEES band.
-func poolMetrics(ms []*Metrics) (out *Metrics, dropped bool) {
+func poolMetrics(ms []*Metrics) (out *Metrics, drop pooled) {
 	if len(ms) == 0 {
-		return nil, false
+		return nil, drop
 	}
 	out = &Metrics{}
 	for _, m := range ms {
 		out.Runs += m.Runs
+		if len(m.NEESLowByStep) > 0 || len(m.NEESHighByStep) > 0 || len(m.NISLowByStep) > 0 ||
+			len(m.NISHighByStep) > 0 || m.NISConfidence != 0 || m.NISInBand != 0 {
+			drop.stepBands = true
+		}
 	}
 	if out.Runs == 0 {
-		return out, false
+		return out, drop
 	}
 	n := float64(out.Runs)
 	var rmse2 float64
 	gw := make([]float64, 0) // weight collected per step (parts may differ in length)
 	nw := make([]float64, 0)
+	var lw, mw, fw, ow []float64
+	// The GOSPA split, OSPA and NIS means are pooled over the parts that
+	// carry the series they average (all of them, in results of one
+	// layout), so that a part without them does not pull them to zero.
+	var splitRuns, ospaRuns, nisRuns float64
 	for _, m := range ms {
-		w := float64(m.Runs) / n
+		r := float64(m.Runs)
+		w := r / n
 		out.MeanGOSPA += w * m.MeanGOSPA
 		rmse2 += w * m.PositionRMSE * m.PositionRMSE
 		out.IDSwitches += m.IDSwitches
 		out.FalseTracks += m.FalseTracks
-		out.GOSPA, gw = accumulate(out.GOSPA, gw, m.GOSPA, float64(m.Runs))
-		out.NEES, nw = accumulate(out.NEES, nw, m.NEES, float64(m.Runs))
+		out.GOSPA, gw = accumulate(out.GOSPA, gw, m.GOSPA, r)
+		out.NEES, nw = accumulate(out.NEES, nw, m.NEES, r)
+		if len(m.GOSPALocalisation) > 0 {
+			splitRuns += r
+			out.MeanGOSPALocalisation += float64(r * m.MeanGOSPALocalisation)
+			out.MeanGOSPAMissed += float64(r * m.MeanGOSPAMissed)
+			out.MeanGOSPAFalse += float64(r * m.MeanGOSPAFalse)
+		}
+		out.GOSPALocalisation, lw = accumulate(out.GOSPALocalisation, lw, m.GOSPALocalisation, r)
+		out.GOSPAMissed, mw = accumulate(out.GOSPAMissed, mw, m.GOSPAMissed, r)
+		out.GOSPAFalse, fw = accumulate(out.GOSPAFalse, fw, m.GOSPAFalse, r)
+		if len(m.OSPA) > 0 {
+			ospaRuns += r
+			out.MeanOSPA += float64(r * m.MeanOSPA)
+		}
+		out.OSPA, ow = accumulate(out.OSPA, ow, m.OSPA, r)
+		if len(m.NIS) > 0 {
+			nisRuns += r
+			out.MeanNIS += float64(r * m.MeanNIS)
+			out.NISSamplesInBand += float64(r * m.NISSamplesInBand)
+		}
 	}
-	for k := range out.GOSPA {
-		out.GOSPA[k] /= gw[k]
+	divide(out.GOSPA, gw)
+	divide(out.NEES, nw)
+	divide(out.GOSPALocalisation, lw)
+	divide(out.GOSPAMissed, mw)
+	divide(out.GOSPAFalse, fw)
+	divide(out.OSPA, ow)
+	if splitRuns > 0 {
+		out.MeanGOSPALocalisation /= splitRuns
+		out.MeanGOSPAMissed /= splitRuns
+		out.MeanGOSPAFalse /= splitRuns
 	}
-	for k := range out.NEES {
-		out.NEES[k] /= nw[k]
+	if ospaRuns > 0 {
+		out.MeanOSPA /= ospaRuns
 	}
+	if nisRuns > 0 {
+		out.MeanNIS /= nisRuns
+		out.NISSamplesInBand /= nisRuns
+	}
+	out.NIS, out.NISSteps = poolNIS(ms)
+	out.Objects = poolObjects(ms)
 	out.PositionRMSE = math.Sqrt(rmse2)
 	same := true
 	for _, m := range ms[1:] {
@@ -452,7 +538,113 @@ func poolMetrics(ms []*Metrics) (out *Metrics, dropped bool) {
 			out.NEESInBand = float64(in) / float64(len(out.NEES))
 		}
 	}
-	return out, !same && len(out.NEES) > 0
+	drop.neesBand = !same && len(out.NEES) > 0
+	return out, drop
+}
+
+// divide divides each sum by its weight.
+func divide(sum, weight []float64) {
+	for k := range sum {
+		sum[k] /= weight[k]
+	}
+}
+
+// poolNIS pools the per-step NIS averages with run-count weights. When
+// every part that has them names their steps (NISSteps parallel to NIS),
+// the averages are pooled step by step and the union of the steps is
+// kept, in ascending order; otherwise they are pooled by position, as the
+// NEES averages are, and the steps are left out.
+func poolNIS(ms []*Metrics) ([]float64, []int) {
+	byStep := true
+	for _, m := range ms {
+		if len(m.NIS) > 0 && len(m.NISSteps) != len(m.NIS) {
+			byStep = false
+		}
+	}
+	if !byStep {
+		var sum, w []float64
+		for _, m := range ms {
+			sum, w = accumulate(sum, w, m.NIS, float64(m.Runs))
+		}
+		divide(sum, w)
+		return sum, nil
+	}
+	sum := map[int]float64{}
+	w := map[int]float64{}
+	for _, m := range ms {
+		for i, st := range m.NISSteps {
+			sum[st] += float64(float64(m.Runs) * m.NIS[i])
+			w[st] += float64(m.Runs)
+		}
+	}
+	if len(sum) == 0 {
+		return nil, nil
+	}
+	steps := make([]int, 0, len(sum))
+	for st := range sum {
+		steps = append(steps, st)
+	}
+	slices.Sort(steps)
+	vals := make([]float64, len(steps))
+	for i, st := range steps {
+		vals[i] = sum[st] / w[st]
+	}
+	return vals, steps
+}
+
+// poolObjects pools each object's errors over the parts: RMSE² weighted
+// by the parts' step counts for the object, the counts summed. When a
+// part gives the object no step count (a summary that does not record
+// it), that object's errors are weighted by the parts' run counts instead.
+// Objects are sorted by id, as in a summary.
+func poolObjects(ms []*Metrics) []ObjectError {
+	type acc struct {
+		pos2, vel2, w    float64
+		rpos2, rvel2, rw float64
+		steps            int
+		missingSteps     bool
+	}
+	objs := map[string]*acc{}
+	var ids []string
+	for _, m := range ms {
+		r := float64(m.Runs)
+		for _, o := range m.Objects {
+			a := objs[o.Object]
+			if a == nil {
+				a = &acc{}
+				objs[o.Object] = a
+				ids = append(ids, o.Object)
+			}
+			s := float64(o.Steps)
+			a.pos2 += float64(s * float64(o.RMSEPosition*o.RMSEPosition))
+			a.vel2 += float64(s * float64(o.RMSEVelocity*o.RMSEVelocity))
+			a.w += s
+			a.rpos2 += float64(r * float64(o.RMSEPosition*o.RMSEPosition))
+			a.rvel2 += float64(r * float64(o.RMSEVelocity*o.RMSEVelocity))
+			a.rw += r
+			a.steps += o.Steps
+			if o.Steps <= 0 {
+				a.missingSteps = true
+			}
+		}
+	}
+	if len(ids) == 0 {
+		return nil
+	}
+	sort.Strings(ids)
+	out := make([]ObjectError, 0, len(ids))
+	for _, id := range ids {
+		a := objs[id]
+		e := ObjectError{Object: id, Steps: a.steps}
+		switch {
+		case !a.missingSteps && a.w > 0:
+			e.RMSEPosition, e.RMSEVelocity = math.Sqrt(a.pos2/a.w), math.Sqrt(a.vel2/a.w)
+		case a.rw > 0:
+			e.RMSEPosition, e.RMSEVelocity = math.Sqrt(a.rpos2/a.rw), math.Sqrt(a.rvel2/a.rw)
+		}
+		out = append(out, e)
+	}
+	return out
 }
 
 // accumulate adds w·xs into sum step by step, growing sum (and the weight
