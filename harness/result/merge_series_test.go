@@ -2,6 +2,7 @@ package result_test
 
 import (
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
@@ -9,7 +10,9 @@ import (
 	"github.com/google/go-cmp/cmp"
 	"github.com/google/go-cmp/cmp/cmpopts"
 
+	"trackgate/harness/config"
 	"trackgate/harness/result"
+	"trackgate/harness/runner"
 )
 
 // seriesParts builds a pair of partial summaries of the "berth" scenario:
@@ -153,5 +156,89 @@ func TestMergeKeepsWholeSummaryApart(t *testing.T) {
 	if orig.OSPA[0] != 3 || orig.GOSPAFalse[0] != 4 || orig.NIS[0] != 1 || orig.NISSteps[0] != 0 ||
 		orig.NISLowByStep[0] != 0.3 || orig.Objects[0].Steps != 30 {
 		t.Fatalf("the merged summary shares series with the shard's: %+v", orig)
+	}
+}
+
+// judgedRuns builds runs of a scenario with per-run metrics drawn from a
+// seeded source: every run has the same number of NIS and NEES samples at
+// each step (none at step 0), and the objects are covered for different
+// numbers of steps in different runs.
+func judgedRuns(n int) []result.Run {
+	rng := rand.New(rand.NewPCG(4471, 93))
+	draw := func(k int, scale float64) []float64 {
+		out := make([]float64, k)
+		for i := range out {
+			out[i] = float64(scale * rng.Float64())
+		}
+		return out
+	}
+	var runs []result.Run
+	for i := range n {
+		m := &result.RunMetrics{GOSPA: draw(5, 10), PositionRMSE: 1 + rng.Float64(), IDSwitches: i % 2,
+			GOSPALocalisation: draw(5, 40), GOSPAMissed: draw(5, 20), GOSPAFalse: draw(5, 20), OSPA: draw(5, 6)}
+		m.MeanGOSPA, m.MeanOSPA = 10*rng.Float64(), 6*rng.Float64()
+		m.MeanGOSPALocalisation, m.MeanGOSPAMissed, m.MeanGOSPAFalse = 40*rng.Float64(), 20*rng.Float64(), 20*rng.Float64()
+		m.Objects = []result.ObjectError{
+			{Object: "ferry", RMSEPosition: 1 + rng.Float64(), RMSEVelocity: rng.Float64(), Steps: 2 + i},
+			{Object: "launch", RMSEPosition: 2 + rng.Float64(), RMSEVelocity: rng.Float64(), Steps: 5 - i},
+		}
+		m.NISSamples = [][]float64{{}, draw(2, 6), draw(1, 6), draw(2, 6), draw(2, 6)}
+		m.NEESSamples = [][]float64{{}, draw(2, 8), draw(2, 8), draw(1, 8), draw(2, 8)}
+		var sum float64
+		for _, s := range m.NISSamples {
+			for _, v := range s {
+				sum += v
+			}
+		}
+		m.MeanNIS = sum / 7
+		runs = append(runs, result.Run{Index: i, Seed: uint64(500 + i), Status: result.Pass, Metrics: m, Values: []result.Value{}})
+	}
+	return runs
+}
+
+// judgedScenario is a scenario holding runs, summarised by runner.Judge
+// as if they were all its runs.
+func judgedScenario(t *testing.T, runs []result.Run) result.Scenario {
+	t.Helper()
+	s := &result.Suite{Scenarios: []result.Scenario{{Name: "ferry-lane", Hash: "cc", StateDim: 4, MeasDim: 2,
+		Position: []int{0, 2}, Status: result.Pass, RunsPlanned: len(runs), Runs: runs}}}
+	if err := runner.Judge(s, config.Config{}); err != nil {
+		t.Fatal(err)
+	}
+	return s.Scenarios[0]
+}
+
+// TestMergeMatchesWholeSummary: pooling the summaries that runner.Judge
+// computes on two shares of a scenario's runs gives the summary it
+// computes on all of them, for every field Merge pools, when each run gives
+// the same number of samples at each step (the condition of Merge's doc
+// comment). The whole summary is computed from the runs' own values, not
+// by Merge.
+func TestMergeMatchesWholeSummary(t *testing.T) {
+	runs := judgedRuns(4)
+	whole := judgedScenario(t, runs).Metrics
+	a, b := part(0, 2), part(1, 2)
+	a.Scenarios[0] = judgedScenario(t, runs[:1])
+	b.Scenarios[0] = judgedScenario(t, runs[1:])
+	for _, s := range []*result.Suite{a, b} {
+		s.Scenarios[0].RunsPlanned = 4
+		s.Scenarios = s.Scenarios[:1]
+	}
+	got, err := result.Merge(a, b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pooled := got.Scenarios[0].Metrics
+	if whole == nil || pooled == nil || len(whole.NIS) != 4 || len(whole.Objects) != 2 {
+		t.Fatalf("whole summary %+v, pooled %+v: want both, with 4 NIS averages and 2 objects", whole, pooled)
+	}
+	// The fields Merge drops, as its doc comment says.
+	dropped := cmpopts.IgnoreFields(result.Metrics{}, "NEESSteps", "NEESLowByStep", "NEESHighByStep",
+		"NEESLow", "NEESHigh", "NEESConfidence", "NEESInBand", "NISLowByStep", "NISHighByStep", "NISConfidence", "NISInBand")
+	if d := cmp.Diff(whole, pooled, dropped, cmpopts.EquateApprox(0, 1e-12)); d != "" {
+		t.Errorf("pooled summary differs from the whole one (-whole +pooled):\n%s", d)
+	}
+	if pooled.NISLowByStep != nil || pooled.NEESLowByStep != nil || pooled.NISInBand != 0 {
+		t.Errorf("per-step bands kept: NIS %v NEES %v, NIS in band %v", pooled.NISLowByStep, pooled.NEESLowByStep, pooled.NISInBand)
 	}
 }
