@@ -112,7 +112,8 @@ func paths(frames []mot.Frame, pos []int) []result.Path {
 }
 
 // timeline says per step whether the tracker's associations agreed with
-// the reference's: "same"; "tie" when every cluster of the reference's step
+// the reference's, over the tracks that report one (as the verdicts
+// judge them): "same"; "tie" when every cluster of the reference's step
 // that holds an object whose association changed has a margin within the
 // ambiguity threshold (the rule the verdicts apply, partsTied); "differs"
 // otherwise. A step without per-cluster structure is judged by the scan's
@@ -127,7 +128,8 @@ func (s *settings) timeline(j *job) []string {
 		v := newView(d, f, j.names)
 		var changed []string
 		for _, od := range d.Objects {
-			if i, ok := v.byObj[od.Object]; ok && f.Tracks[i].Detection != od.Detection {
+			i, ok := v.byObj[od.Object]
+			if ok && f.Tracks[i].HasDetection && f.Tracks[i].Detection != od.Detection {
 				changed = append(changed, od.Object)
 			}
 		}

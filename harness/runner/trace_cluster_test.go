@@ -1,7 +1,12 @@
 package runner
 
 import (
+	"slices"
 	"testing"
+
+	"trackgate/harness/mot"
+	"trackgate/harness/protocol"
+	"trackgate/harness/result"
 )
 
 // TestTimelineJudgesByCluster: the association timeline labels a step the
@@ -41,5 +46,47 @@ func TestTimelineJudgesByCluster(t *testing.T) {
 				t.Fatalf("step 1 labelled %q, want %q (timeline %v)", got[1], tt.want, got)
 			}
 		})
+	}
+}
+
+// TestTimelineSkipsUnreported: a step at which the tracker reports no
+// association for its tracks (HasDetection false, Detection NoDetection)
+// is not a change, as the verdicts do not judge it one: the reference run
+// that keeps quiet at step 1 is "same" throughout and passes.
+func TestTimelineSkipsUnreported(t *testing.T) {
+	inner := quayTracker(false, false)
+	var o Options
+	o.Scenarios = []string{quayFile}
+	o.Against, o.Workers = AgainstReference, 1
+	o.Getenv = func(string) string { return "" }
+	o.Config.TieMargin = 0.01
+	o.Local = &Local{
+		Ready: inner.Ready,
+		Begin: func(s protocol.Start) (protocol.StepFunc, error) {
+			step, err := inner.Begin(s)
+			if err != nil {
+				return nil, err
+			}
+			return func(scan mot.Scan) (mot.Frame, error) {
+				f, err := step(scan)
+				if scan.Step == 1 {
+					for i := range f.Tracks {
+						f.Tracks[i].Detection, f.Tracks[i].HasDetection = mot.NoDetection, false
+					}
+				}
+				return f, err
+			}, nil
+		},
+	}
+	s := checkOf(t, o)
+	tr := s.Scenarios[0].Runs[0].Trace
+	if tr == nil {
+		t.Fatal("run 0 has no trace")
+	}
+	if want := []string{"same", "same", "same", "same"}; !slices.Equal(tr.Associations, want) {
+		t.Fatalf("timeline %v, want %v (status %s)", tr.Associations, want, s.Status)
+	}
+	if s.Status != result.Pass {
+		t.Fatalf("suite status %s, want pass", s.Status)
 	}
 }
