@@ -61,9 +61,9 @@ import (
 // NISHighByStep, and with them NISConfidence and NISInBand (a note in
 // Suite.Notes says so when a part carried them); so are the steps of the
 // NEES averages (NEESSteps), which are pooled by position. The single NEES
-// band depends on the number of runs, so NEESLow, NEESHigh,
-// NEESConfidence and NEESInBand are kept only when every part gives the
-// same band, and dropped otherwise, with a note.
+// band depends on the number of samples averaged, which pooling changes, so
+// NEESLow, NEESHigh, NEESConfidence and NEESInBand are dropped too, with a
+// note.
 // Gates decided on part of the runs cannot be combined: they are dropped,
 // and a note in Suite.Notes says so. 'trackgate merge' then judges the scenario summaries
 // and gates again from the runs' own values (runner.Judge), which gives the
@@ -394,7 +394,7 @@ func mergeScenario(name string, suites []*Suite) (Scenario, []string, []string) 
 		var drop pooled
 		out.Metrics, drop = poolMetrics(ms)
 		if drop.neesBand {
-			notes = append(notes, fmt.Sprintf("scenario %q: the shards' NEES bands differ (different run counts); the merged metrics carry no band", name))
+			notes = append(notes, fmt.Sprintf("scenario %q: a NEES band holds for the sample count it was computed for, not for the pooled average; the merged metrics carry no band", name))
 		}
 		if drop.stepBands {
 			notes = append(notes, fmt.Sprintf("scenario %q: the per-step NEES and NIS bands depend on each step's sample count, which the shards' summaries do not carry; the merged metrics carry none", name))
@@ -437,7 +437,8 @@ func cloneMetrics(m *Metrics) *Metrics {
 
 // pooled says what poolMetrics had to leave out.
 type pooled struct {
-	// neesBand: the parts disagreed on the single NEES band.
+	// neesBand: the parts carried a single NEES band, which does not hold
+	// for the pooled average.
 	neesBand bool
 	// stepBands: some part carried per-step NEES or NIS bands (or a NIS
 	// band judgement), which depend on per-step sample counts the parts
@@ -520,25 +521,10 @@ func poolMetrics(ms []*Metrics) (out *Metrics, drop pooled) {
 	out.NIS, out.NISSteps = poolNIS(ms)
 	out.Objects = poolObjects(ms)
 	out.PositionRMSE = math.Sqrt(rmse2)
-	same := true
-	for _, m := range ms[1:] {
-		if m.NEESLow != ms[0].NEESLow || m.NEESHigh != ms[0].NEESHigh || m.NEESConfidence != ms[0].NEESConfidence {
-			same = false
-		}
-	}
-	if same {
-		out.NEESLow, out.NEESHigh, out.NEESConfidence = ms[0].NEESLow, ms[0].NEESHigh, ms[0].NEESConfidence
-		if out.NEESHigh > out.NEESLow && len(out.NEES) > 0 {
-			in := 0
-			for _, v := range out.NEES {
-				if v >= out.NEESLow && v <= out.NEESHigh {
-					in++
-				}
-			}
-			out.NEESInBand = float64(in) / float64(len(out.NEES))
-		}
-	}
-	drop.neesBand = !same && len(out.NEES) > 0
+	// The band of an average over M samples is χ²-quantiles/M: pooling
+	// changes M, so no part's band is the pooled average's band, even when
+	// the parts agree (Bar-Shalom, Li, Kirubarajan 2001, §5.4.2).
+	drop.neesBand = len(out.NEES) > 0 && slices.ContainsFunc(ms, func(m *Metrics) bool { return m.NEESHigh > m.NEESLow })
 	return out, drop
 }
 
