@@ -144,8 +144,12 @@ type Gate struct {
 
 // Paired is a paired comparison gate.
 type Paired struct {
-	// Confidence is the one-sided confidence in (0, 1) that the tracker is
-	// worse before the gate fails.
+	// Confidence c in (0, 1) is the one-sided confidence that the tracker is
+	// worse before the gate fails: the gate fails when the one-sided lower
+	// confidence bound at level c of the mean worsening exceeds
+	// max(0, MinEffect), that is, when the one-sided test of "no worse than
+	// MinEffect" rejects at level 1 − c (see metrics.Paired). 0.95 is a
+	// 5% one-sided test, not the lower end of a two-sided 95% interval.
 	Confidence float64
 	// MinEffect is the smallest mean difference that can fail the gate.
 	MinEffect float64

@@ -59,7 +59,8 @@
 //	    limit: 12.5                # absolute: fails when the value is worse than this
 //	  - metric: nees
 //	    paired:                    # paired: the tracker against the reference over runs
-//	      confidence: 0.95         # in (0, 1)
+//	      confidence: 0.95         # in (0, 1): one-sided confidence that the
+//	                               # tracker is worse (a one-sided test at 1 − c)
 //	      min_effect: 0.25         # smallest difference that counts, ≥ 0
 //
 // A per-scenario pattern must be able to match a scenario name (lower-case

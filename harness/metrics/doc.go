@@ -57,19 +57,26 @@
 // For runs i = 1..N on the same seeds, with per-run metric values aᵢ of the
 // candidate and bᵢ of the baseline, the worsening is dᵢ = s·(aᵢ − bᵢ), with
 // s = +1 when lower values are better (GOSPA, RMSE) and s = −1 otherwise.
-// With d̄ the mean, s_d the sample standard deviation and t = t_{N−1}⁻¹((1 + c)/2)
-// the Student-t quantile, the interval for the mean worsening is
+// With d̄ the mean, s_d the sample standard deviation and t_{N−1}⁻¹ the
+// Student-t quantile, the one-sided lower confidence bound at confidence c
+// for the mean worsening μ_d is
 //
-//	[L, U] = d̄ ∓ t·s_d/√N,
+//	L₁ = d̄ − t_{N−1}⁻¹(c)·s_d/√N,
 //
-// and the gate fails exactly when L > max(0, δ), where δ ≥ 0 is the smallest
-// worsening worth failing for: the candidate is worse with confidence c and
-// even the optimistic end of the interval exceeds the minimum effect.
+// and the gate fails exactly when L₁ > max(0, δ), where δ ≥ 0 is the
+// smallest worsening worth failing for: "worse with confidence c and by more
+// than the minimum effect". This is the one-sided t test of
+// H₀: μ_d ≤ max(0, δ) at level 1 − c; its p-value
+// P(T_{N−1} ≥ (d̄ − max(0, δ))/(s_d/√N)) is the verdict's PValue, and the
+// gate fails exactly when PValue < 1 − c. A verdict's [Lo, Hi] is the
+// one-sided interval [L₁, +∞) the decision is taken on; MeanInterval gives
+// the two-sided interval d̄ ∓ t_{N−1}⁻¹((1 + c)/2)·s_d/√N for display.
 //
-// Ranked is the distribution-free alternative: the same decision rule with
-// the Hodges–Lehmann estimate (median of the Walsh averages (dᵢ + dⱼ)/2) and
-// the Walsh-average interval that inverts the Wilcoxon signed-rank test.
-// SignedRankTest and SignTest give the underlying one-sided p-values.
+// Ranked is the distribution-free alternative: the same one-sided decision
+// rule with the Hodges–Lehmann estimate (median of the Walsh averages
+// (dᵢ + dⱼ)/2) and the one-sided Walsh-average lower bound that inverts the
+// one-sided Wilcoxon signed-rank test. SignedRankTest and SignTest give the
+// underlying one-sided p-values.
 //
 // # Per-object errors and identity
 //
@@ -90,9 +97,10 @@
 //   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
 //     optimal sub-pattern assignment metric", 20th Int. Conf. on Information
 //     Fusion (FUSION), 2017 (Definition 1, Proposition 1).
-//   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric for
-//     evaluating multi-object tracking algorithms", IEEE Trans. Signal
-//     Processing 68, 2020.
+//   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric on
+//     the space of finite sets of trajectories for evaluation of
+//     multi-target tracking algorithms", IEEE Trans. Signal Processing 68,
+//     2020, pp. 3917–3928 (the trajectory extension of GOSPA).
 //   - D. Schuhmacher, B.-T. Vo, B.-N. Vo, "A consistent metric for
 //     performance evaluation of multi-object filters", IEEE Trans. Signal
 //     Processing 56(8):3447–3457, 2008.

@@ -28,9 +28,11 @@ func ExampleWorkspace_GOSPA() {
 }
 
 // Four seeds, per-run mean GOSPA of a candidate and a baseline tracker. The
-// worsening is 0.5, 1.5, 0.5, 1.5 m: mean 1, s = 0.5774, and with
-// t₃(0.975) = 3.182 the interval is 1 ∓ 3.182·0.5774/2 = [0.08, 1.92] m,
-// above 0: the gate fails. With a minimum effect of 0.5 m it passes.
+// worsening is 0.5, 1.5, 0.5, 1.5 m: mean 1, s = 0.5774, and with the table
+// value t₃(0.95) = 2.353 the one-sided 95% lower bound is
+// 1 − 2.353·0.5774/2 = 0.32 m, above 0: the gate fails. With a minimum
+// effect of 0.5 m it passes. The two-sided 95% interval, for display, uses
+// t₃(0.975) = 3.182: 1 ∓ 3.182·0.5774/2 = [0.08, 1.92] m.
 func ExamplePaired_Compare() {
 	baseline := []float64{4.0, 6.0, 5.0, 3.5}
 	candidate := []float64{4.5, 7.5, 5.5, 5.0}
@@ -39,12 +41,15 @@ func ExamplePaired_Compare() {
 		fmt.Println(err)
 		return
 	}
-	fmt.Printf("estimate %.2f, interval [%.2f, %.2f], pass %v\n", v.Estimate, v.Lo, v.Hi, v.Pass)
+	fmt.Printf("estimate %.2f, bound [%.2f, %v), pass %v\n", v.Estimate, v.Lo, v.Hi, v.Pass)
 	v, _ = metrics.Paired{MinEffect: 0.5}.Compare("mean GOSPA", candidate, baseline)
 	fmt.Printf("with minimum effect 0.5: pass %v\n", v.Pass)
+	lo, hi, _ := metrics.MeanInterval([]float64{0.5, 1.5, 0.5, 1.5}, 0.95)
+	fmt.Printf("two-sided interval [%.2f, %.2f]\n", lo, hi)
 	// Output:
-	// estimate 1.00, interval [0.08, 1.92], pass false
+	// estimate 1.00, bound [0.32, +Inf), pass false
 	// with minimum effect 0.5: pass true
+	// two-sided interval [0.08, 1.92]
 }
 
 // Two Monte Carlo runs of a filter with a scalar state. The average of two

@@ -74,14 +74,22 @@ func ConsistentSteps(gate string, c Consistency, minInside float64) Verdict {
 }
 
 // Paired is the relative gate of a candidate against a baseline run on the
-// same seeds; see the package documentation for the decision rule
+// same seeds: a one-sided paired t test at level 1 − c of H₀: μ_d ≤ max(0, δ)
+// (see the package documentation),
 //
-//	fail ⇔ L > max(0, MinEffect),  L = d̄ − t_{N−1}⁻¹((1 + c)/2)·s_d/√N.
+//	fail ⇔ L₁ > max(0, MinEffect),  L₁ = d̄ − t_{N−1}⁻¹(c)·s_d/√N,
 //
-// The zero value is a two-sided 95% gate with no minimum effect for a metric
+// where L₁ is the one-sided lower confidence bound of the mean worsening at
+// confidence c. The verdict reports Lo = L₁ and Hi = +Inf, the one-sided
+// interval [L₁, +∞) the decision is taken on, and the one-sided p-value of
+// H₀; the gate fails exactly when that p-value is below 1 − c. The
+// two-sided interval, for display, is MeanInterval.
+//
+// The zero value is a 95% one-sided gate with no minimum effect for a metric
 // where lower is better.
 type Paired struct {
-	// Confidence c of the two-sided interval, in (0, 1); zero means 0.95.
+	// Confidence c in (0, 1) that the candidate is worse before the gate
+	// fails: the one-sided level of the lower bound; zero means 0.95.
 	Confidence float64
 	// MinEffect δ ≥ 0 is the smallest mean worsening, in the metric's unit,
 	// that may fail the gate; zero means any significant worsening fails.
@@ -104,38 +112,63 @@ func (g Paired) Compare(gate string, candidate, baseline []float64) (Verdict, er
 	}
 	n := float64(len(d))
 	mean, sd := meanSD(d)
-	half := 0.0
 	shift := math.Max(0, g.MinEffect)
-	v := Verdict{Gate: gate, Test: "paired t", Estimate: mean, Limit: g.MinEffect}
+	v := Verdict{Gate: gate, Test: "paired t", Estimate: mean, Lo: mean, Hi: math.Inf(1), Limit: g.MinEffect}
 	if sd > 0 {
 		dist := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: n - 1}
 		se := sd / math.Sqrt(n)
-		half = dist.Quantile((1+conf)/2) * se
+		v.Lo = mean - dist.Quantile(conf)*se
 		v.PValue = dist.Survival((mean - shift) / se)
 	} else if mean > shift {
 		v.PValue = 0
 	} else {
 		v.PValue = 1
 	}
-	v.Lo, v.Hi = mean-half, mean+half
 	worse := "higher"
 	if g.HigherIsBetter {
 		worse = "lower"
 	}
 	switch {
 	case v.Lo > shift:
-		v.Reason = fmt.Sprintf("candidate is worse (%s) by %.4g on average over %d runs; the %g interval [%.4g, %.4g] lies above the minimum effect %g",
-			worse, mean, len(d), conf, v.Lo, v.Hi, g.MinEffect)
+		v.Reason = fmt.Sprintf("candidate is worse (%s) by %.4g on average over %d runs; its one-sided %g lower bound %.4g lies above the minimum effect %g (p = %.3g)",
+			worse, mean, len(d), conf, v.Lo, g.MinEffect, v.PValue)
 	case v.Lo > 0:
 		v.Pass = true
-		v.Reason = fmt.Sprintf("candidate is worse with confidence %g, but the interval [%.4g, %.4g] reaches below the minimum effect %g",
-			conf, v.Lo, v.Hi, g.MinEffect)
+		v.Reason = fmt.Sprintf("candidate is worse with confidence %g, but its one-sided lower bound %.4g does not exceed the minimum effect %g (p = %.3g)",
+			conf, v.Lo, g.MinEffect, v.PValue)
 	default:
 		v.Pass = true
-		v.Reason = fmt.Sprintf("no significant worsening over %d runs: the %g interval [%.4g, %.4g] includes 0 or lies below it",
-			len(d), conf, v.Lo, v.Hi)
+		v.Reason = fmt.Sprintf("no significant worsening over %d runs: the one-sided %g lower bound %.4g is not above 0 (p = %.3g)",
+			len(d), conf, v.Lo, v.PValue)
 	}
 	return v, nil
+}
+
+// MeanInterval returns the two-sided Student-t confidence interval with
+// coverage conf for the mean of d,
+//
+//	[L, U] = d̄ ∓ t_{N−1}⁻¹((1 + conf)/2)·s_d/√N,
+//
+// for display beside a gate's verdict; the gate itself decides on the
+// one-sided bound (Paired). It returns an error for fewer than two values
+// or a value that is not finite, and panics on conf outside (0, 1).
+//
+// References: W. S. Gosset ("Student"), "The probable error of a mean",
+// Biometrika 6(1):1–25, 1908.
+func MeanInterval(d []float64, conf float64) (lo, hi float64, err error) {
+	if !(conf > 0 && conf < 1) {
+		panic(fmt.Sprintf("metrics: confidence is %g, want a number in (0, 1)", conf))
+	}
+	if len(d) < 2 {
+		return 0, 0, fmt.Errorf("%d values, need at least 2", len(d))
+	}
+	if err := checkFinite(d); err != nil {
+		return 0, 0, err
+	}
+	mean, sd := meanSD(d)
+	n := float64(len(d))
+	half := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: n - 1}.Quantile((1+conf)/2) * sd / math.Sqrt(n)
+	return mean - half, mean + half, nil
 }
 
 // Validate reports a confidence outside (0, 1) (zero stands for 0.95) or a

@@ -170,19 +170,22 @@ func checkFinite(d []float64) error {
 }
 
 // Ranked is the distribution-free counterpart of Paired: the same paired
-// differences dᵢ and the same decision rule, fail ⇔ L > max(0, MinEffect),
-// with the Hodges–Lehmann estimate (the median of the Walsh averages
-// (dᵢ + dⱼ)/2, i ≤ j) in place of the mean and the Walsh-average interval
-// in place of the t interval:
+// differences dᵢ and the same one-sided decision rule at level 1 − c,
+// fail ⇔ L₁ > max(0, MinEffect), with the Hodges–Lehmann estimate (the
+// median of the Walsh averages (dᵢ + dⱼ)/2, i ≤ j) in place of the mean and
+// the one-sided Walsh-average lower bound in place of the t bound:
 //
-//	[L, U] = [W₍M+1−k₎, W₍k₎],  M = N(N + 1)/2,
+//	L₁ = W₍M+1−k₎,  M = N(N + 1)/2,
 //
 // where W₍₁₎ ≤ … ≤ W₍M₎ are the sorted Walsh averages and k is the smallest
-// w with P(W⁺ ≥ w) ≤ (1 − c)/2 under the null distribution of the
-// signed-rank statistic for N untied, non-zero differences (exact up to
-// ExactRankLimit, normal approximation above). Verdict.PValue is the
-// one-sided signed-rank p-value of the differences shifted by
-// max(0, MinEffect).
+// w with P(W⁺ ≥ w) ≤ 1 − c under the null distribution of the signed-rank
+// statistic for N untied, non-zero differences (exact up to
+// ExactRankLimit, normal approximation above). The verdict reports
+// Lo = L₁ and Hi = +Inf, the one-sided interval [L₁, +∞). Verdict.PValue is
+// the one-sided signed-rank p-value of the differences shifted by
+// δ' = max(0, MinEffect); since W⁺(d − δ') counts the Walsh averages above
+// δ', L₁ > δ' exactly when W⁺(d − δ') ≥ k, that is when the exact p-value
+// is at most 1 − c (for untied, non-zero shifted differences).
 //
 // References: J. L. Hodges, E. L. Lehmann, "Estimates of location based on
 // rank tests", Ann. Math. Statist. 34(2):598–611, 1963; M. Hollander,
@@ -198,9 +201,8 @@ type Ranked struct {
 }
 
 // Compare judges candidate against baseline on the same seeds; errors and
-// panics are as for Paired.Compare. With N so small that no interval
-// reaches confidence c (N ≤ 5 at 95%), the interval is the whole line and
-// the gate passes.
+// panics are as for Paired.Compare. With N so small that no bound reaches
+// confidence c (N ≤ 4 at 95%), the bound is −Inf and the gate passes.
 func (g Ranked) Compare(gate string, candidate, baseline []float64) (Verdict, error) {
 	conf := mustGate(g.Confidence, g.MinEffect)
 	d, err := differences(candidate, baseline, g.HigherIsBetter)
@@ -221,8 +223,8 @@ func (g Ranked) Compare(gate string, candidate, baseline []float64) (Verdict, er
 		est = (walsh[m/2-1] + walsh[m/2]) / 2
 	}
 	v := Verdict{Gate: gate, Test: "signed rank", Estimate: est, Lo: math.Inf(-1), Hi: math.Inf(1), Limit: g.MinEffect}
-	if k := rankCritical(n, (1-conf)/2); k <= m {
-		v.Lo, v.Hi = walsh[m-k], walsh[k-1]
+	if k := rankCritical(n, 1-conf); k <= m {
+		v.Lo = walsh[m-k]
 	}
 	shift := math.Max(0, g.MinEffect)
 	shifted := make([]float64, n)
@@ -233,12 +235,12 @@ func (g Ranked) Compare(gate string, candidate, baseline []float64) (Verdict, er
 		return Verdict{}, err
 	}
 	if v.Lo > shift {
-		v.Reason = fmt.Sprintf("candidate is worse by %.4g (median of Walsh averages) over %d runs; the %g interval [%.4g, %.4g] lies above the minimum effect %g",
-			est, n, conf, v.Lo, v.Hi, g.MinEffect)
+		v.Reason = fmt.Sprintf("candidate is worse by %.4g (median of Walsh averages) over %d runs; its one-sided %g lower bound %.4g lies above the minimum effect %g (p = %.3g)",
+			est, n, conf, v.Lo, g.MinEffect, v.PValue)
 	} else {
 		v.Pass = true
-		v.Reason = fmt.Sprintf("no worsening beyond the minimum effect %g with confidence %g over %d runs: interval [%.4g, %.4g]",
-			g.MinEffect, conf, n, v.Lo, v.Hi)
+		v.Reason = fmt.Sprintf("no worsening beyond the minimum effect %g with confidence %g over %d runs: one-sided lower bound %.4g (p = %.3g)",
+			g.MinEffect, conf, n, v.Lo, v.PValue)
 	}
 	return v, nil
 }

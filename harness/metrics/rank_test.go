@@ -141,10 +141,11 @@ func TestSignTest(t *testing.T) {
 	}
 }
 
-// TestRankedInterval checks the Walsh-average interval by the duality it
-// rests on (Hollander & Wolfe 1999, §3.3, from memory): W⁺ of d − θ counts
-// the Walsh averages above θ, so just below the lower bound W⁺ reaches the
-// critical value and just above it does not.
+// TestRankedInterval checks the one-sided Walsh-average lower bound by the
+// duality it rests on (Hollander & Wolfe 1999, §3.3, from memory): W⁺ of
+// d − θ counts the Walsh averages above θ, so just below the lower bound W⁺
+// reaches the one-sided critical value at level 1 − c and just above it
+// does not.
 func TestRankedInterval(t *testing.T) {
 	r := testRand(t, 41)
 	for i := 0; i < 200; i++ {
@@ -159,7 +160,7 @@ func TestRankedInterval(t *testing.T) {
 			t.Fatal(err)
 		}
 		d, _ := differences(a, b, false)
-		k := rankCritical(n, 0.025)
+		k := rankCritical(n, 1-0.95)
 		shiftW := func(theta float64) float64 {
 			s := make([]float64, n)
 			for j := range d {
@@ -174,8 +175,8 @@ func TestRankedInterval(t *testing.T) {
 		if w := shiftW(v.Lo + 1e-9); w >= float64(k) {
 			t.Fatalf("W⁺(d − (L + ε)) = %g, want < %d", w, k)
 		}
-		if !(v.Lo <= v.Estimate && v.Estimate <= v.Hi) {
-			t.Fatalf("estimate %g outside [%g, %g]", v.Estimate, v.Lo, v.Hi)
+		if !(v.Lo <= v.Estimate) || !math.IsInf(v.Hi, 1) {
+			t.Fatalf("estimate %g outside [%g, %g], want Hi = +Inf", v.Estimate, v.Lo, v.Hi)
 		}
 	}
 	// Hodges–Lehmann by hand: d = 1, 2, 3 has Walsh averages
@@ -186,6 +187,17 @@ func TestRankedInterval(t *testing.T) {
 	}
 	if v.Estimate != 2 || !math.IsInf(v.Lo, -1) || !math.IsInf(v.Hi, 1) || !v.Pass {
 		t.Errorf("n = 3: %+v, want estimate 2, unbounded interval, pass", v)
+	}
+	// n = 5 all positive: W⁺ = 15 has exact one-sided p = 1/32 = 0.03125
+	// ≤ 0.05 (the whole null distribution is 2⁵ equally likely sign
+	// patterns; Wilcoxon 1945), so the one-sided 95% bound is the smallest
+	// Walsh average, min d = 0.5, and the gate fails.
+	v, err = Ranked{}.Compare("n5", []float64{0.5, 1, 2, 3, 4}, make([]float64, 5))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v.Lo != 0.5 || v.Pass || math.Abs(v.PValue-1.0/32) > 1e-12 {
+		t.Errorf("n = 5: %+v, want bound 0.5, p = 1/32, fail", v)
 	}
 }
 
@@ -215,8 +227,8 @@ func TestRankedSimulation(t *testing.T) {
 		}
 		return fails
 	}
-	if n := count(0, Ranked{}); n > 13 {
-		t.Errorf("noise only: gate failed %d of %d trials, want about 5", n, trials)
+	if n := count(0, Ranked{}); n > 22 {
+		t.Errorf("noise only: gate failed %d of %d trials, want about 10 (one-sided 5%%)", n, trials)
 	}
 	if n := count(1.5, Ranked{}); n < trials-2 {
 		t.Errorf("shift 1.5: gate failed %d of %d trials, want nearly all", n, trials)

@@ -106,7 +106,10 @@ type GateRule struct {
 
 // PairedRule is the paired comparison of a GateRule.
 type PairedRule struct {
-	// Confidence is the one-sided confidence level in (0, 1).
+	// Confidence c is the one-sided confidence level in (0, 1): the gate
+	// fails when the one-sided lower confidence bound at level c of the
+	// mean worsening exceeds max(0, MinEffect) (a one-sided test at level
+	// 1 − c; see metrics.Paired).
 	Confidence float64 `json:"confidence"`
 	// MinEffect is the smallest mean difference that can fail the gate.
 	MinEffect float64 `json:"min_effect"`
@@ -473,8 +476,12 @@ type Metrics struct {
 type Gate struct {
 	Name   string `json:"name"`
 	Status Status `json:"status"`
-	// Estimate with its confidence interval [Low, High], and the threshold
-	// it was judged against.
+	// Estimate and the interval [Low, High] it was judged on, and the
+	// threshold it was judged against. An absolute gate has
+	// Low = High = Estimate. A paired gate reports the one-sided interval
+	// [L₁, +Inf) at its confidence c: Low is the one-sided lower confidence
+	// bound of the mean worsening (worse-direction units, so positive means
+	// worse) and High is +Inf; the gate fails when Low > max(0, min_effect).
 	Estimate  float64 `json:"estimate"`
 	Low       float64 `json:"low"`
 	High      float64 `json:"high"`
