@@ -263,6 +263,7 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 		want[fr.Step] = fr
 	}
 	stopped := map[string]int{} // blessed track name → step
+	rj := s.referenceJudgement(j)
 	for k, fr := range got {
 		wf, ok := want[fr.Step]
 		if !ok {
@@ -309,38 +310,63 @@ func (s *settings) judgeOutput(j *job, a *artefact, f golden.File) {
 			}
 			track[objs[i]] = c
 		}
-		tied, clear := splitTied(clusterParts(d, objs), j.sc.tie)
-		emit := func(ps []part, tie bool) {
+		// Where the reference check judged the object at this step, its
+		// decision is taken: it follows the tracker down the other
+		// branch of a tie, where the margins of the reference's own run
+		// no longer describe the tracker's situation. The others are
+		// judged by the margins of the reference's own run.
+		var rest, byRef, byRefTied []part
+		var js *judgedStep
+		if rj != nil {
+			js = &rj.steps[k]
+		}
+		var unjudged []string
+		for _, o := range objs {
+			v, ok := assocVerdict{}, false
+			if js != nil {
+				v, ok = js.judged[o]
+			}
+			switch {
+			case !ok:
+				unjudged = append(unjudged, o)
+			case v.tie:
+				byRefTied = append(byRefTied, part{cluster: -1, margin: v.margin, objects: []string{o}})
+			default:
+				byRef = append(byRef, part{cluster: -1, margin: v.margin, objects: []string{o}})
+			}
+		}
+		if len(unjudged) > 0 {
+			rest = clusterParts(d, unjudged)
+		}
+		tied, clear := splitTied(rest, j.sc.tie)
+		emit := func(ps []part, tie bool, why string) {
 			if len(ps) == 0 {
 				return
 			}
 			div := result.Divergence{Step: fr.Step, Kind: "association"}
 			var all []string
-			m := ps[0].margin
+			m := mergedMargin(ps, tie)
 			for _, p := range ps {
-				if tie {
-					m = max(m, p.margin)
-				} else {
-					m = min(m, p.margin)
-				}
 				for _, o := range p.objects {
 					div.Objects = append(div.Objects, o)
 					all = append(all, msgs[track[o]])
 				}
 			}
-			div.Message = strings.Join(all, "; ")
+			div.Message = strings.Join(all, "; ") + why
 			if !math.IsInf(m, 0) && !math.IsNaN(m) {
 				div.Margin = &m
 			}
 			if tie {
-				div.Message += "; the reference's margin in the cluster is within the ambiguity threshold"
 				b.tie(div)
 			} else {
 				b.fail(div)
 			}
 		}
-		emit(clear, false)
-		emit(tied, true)
+		const refWhy = "; as the reference check judged it, comparing with the reference's run down the tracker's branch"
+		emit(clear, false, "")
+		emit(byRef, false, refWhy)
+		emit(tied, true, "; the reference's margin in the cluster is within the ambiguity threshold")
+		emit(byRefTied, true, refWhy)
 	}
 	// Values, leaving out tracks from the step they stopped being compared.
 	filter := func(frames []mot.Frame, blessedName func(string) string) []mot.Frame {
@@ -1015,4 +1041,23 @@ func wholeOf(ms []golden.Metric) map[string]float64 {
 		}
 	}
 	return out
+}
+
+// referenceJudgement returns the reference check's judgement of j's
+// associations: the one it recorded when it ran on this run, else the
+// reference check run now for it alone (its result is not reported), so
+// that a check against the goldens only judges a changed association the
+// same way. It is nil when the tracker's tracks are not paired with the
+// reference's objects or it does not report associations.
+func (s *settings) referenceJudgement(j *job) *refJudgement {
+	if !j.res.Tracker.Association || j.names == nil || len(j.ex.Steps) < len(j.res.Frames) {
+		return nil
+	}
+	if rj := judgementOf(j); rj != nil {
+		return rj
+	}
+	ties := j.ties
+	s.checkReference(j)
+	j.ties = ties
+	return judgementOf(j)
 }

@@ -25,6 +25,7 @@ var flipReports = []flipReport{
 	{"everything", true, true},
 	{"associations only", false, true},
 	{"means only", false, false},
+	{"covariances only", true, false},
 }
 
 // biasAfterDeparture is the bias, in metres on the first position

@@ -113,16 +113,27 @@ func paths(frames []mot.Frame, pos []int) []result.Path {
 
 // timeline says per step whether the tracker's associations agreed with
 // the reference's, over the tracks that report one (as the verdicts
-// judge them): "same"; "tie" when every cluster of the reference's step
-// that holds an object whose association changed has a margin within the
-// ambiguity threshold (the rule the verdicts apply, partsTied); "differs"
-// otherwise. A step without per-cluster structure is judged by the scan's
-// margin, which clusterParts then stands for.
+// judge them). Where the reference check judged the run, its labels are
+// taken (see refJudgement): after a tie the tracker resolved the other
+// way the check compares with the reference's run down the tracker's
+// branch, so a step that agrees with the branch is "same" although it
+// differs from the reference's own run. Otherwise each step is compared
+// with the reference's own run: "same"; "tie" when every cluster of the
+// reference's step that holds an object whose association changed has a
+// margin within the ambiguity threshold (the rule the verdicts apply,
+// partsTied); "differs" otherwise. A step without per-cluster structure
+// is judged by the scan's margin, which clusterParts then stands for.
 func (s *settings) timeline(j *job) []string {
 	if !j.res.Tracker.Association || j.names == nil {
 		return nil
 	}
 	out := make([]string, len(j.res.Frames))
+	if rj := judgementOf(j); rj != nil {
+		for k := range out {
+			out[k] = rj.steps[k].label
+		}
+		return out
+	}
 	for k, f := range j.res.Frames {
 		d := &j.ex.Steps[k]
 		v := newView(d, f, j.names)

@@ -3,9 +3,12 @@ package runner
 import (
 	"fmt"
 	"math"
+	"runtime"
 	"slices"
 	"sort"
 	"strings"
+	"sync"
+	"weak"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -240,16 +243,7 @@ func clusterProb(d *tracker.Detail, parts []part, assoc []int) *float64 {
 		cd := &d.PerCluster[pt.cluster]
 		found := false
 		for _, h := range cd.Hypotheses {
-			ok := len(h.Assoc) == len(cd.Rows)
-			for a, row := range cd.Rows {
-				if !ok {
-					break
-				}
-				if row >= len(assoc) || assoc[row] != -2 && h.Assoc[a] != assoc[row] {
-					ok = false
-				}
-			}
-			if ok {
+			if len(h.Assoc) == len(cd.Rows) && agreesWith(cd.Rows, h.Assoc, assoc) {
 				p *= h.Prob
 				found = true
 				break
@@ -260,6 +254,34 @@ func clusterProb(d *tracker.Detail, parts []part, assoc []int) *float64 {
 		}
 	}
 	return &p
+}
+
+// mergedMargin is the margin that stands for the parts of one changed
+// association: the largest of their cluster margins when they are tied
+// (each is at most that, so all are within the threshold when it is) and
+// the smallest when they are clear (each is at least that).
+func mergedMargin(parts []part, tied bool) float64 {
+	m := parts[0].margin
+	for _, p := range parts[1:] {
+		if tied {
+			m = math.Max(m, p.margin)
+		} else {
+			m = math.Min(m, p.margin)
+		}
+	}
+	return m
+}
+
+// agreesWith reports whether the hypothesis association h (one entry per
+// row of rows) agrees with every association the tracker reported (assoc
+// per row of the step; −2 for a row the tracker said nothing about).
+func agreesWith(rows, h, assoc []int) bool {
+	for a, row := range rows {
+		if row >= len(assoc) || a >= len(h) || assoc[row] != -2 && h[a] != assoc[row] {
+			return false
+		}
+	}
+	return true
 }
 
 // assocDivergence describes the share parts of a changed association at
@@ -285,14 +307,7 @@ func assocDivergence(k int, d *tracker.Detail, f mot.Frame, v view, parts []part
 		msgs = append(msgs, fmt.Sprintf("object %s: %s chose %s, the tracker %s", o, what, detName(want), detName(got)))
 	}
 	msg := strings.Join(msgs, "; ")
-	m := parts[0].margin
-	for _, p := range parts[1:] {
-		if tied {
-			m = math.Max(m, p.margin)
-		} else {
-			m = math.Min(m, p.margin)
-		}
-	}
+	m := mergedMargin(parts, tied)
 	if parts[0].cluster < 0 {
 		if math.IsInf(m, 1) {
 			msg += "; the reference had a single hypothesis (margin ∞)"
@@ -558,8 +573,12 @@ func (s *settings) checkReference(j *job) result.Check {
 	}
 	j.ties = map[string]int{}
 	br := newBranch(j, s.K)
+	rj := &refJudgement{steps: make([]judgedStep, len(j.res.Frames))}
+	defer recordJudgement(j, rj)
 	for k, f := range j.res.Frames {
 		d := &j.ex.Steps[k]
+		js := &rj.steps[k]
+		js.label = "same"
 		if br.on {
 			bd, err := br.next(k)
 			if err != nil {
@@ -591,6 +610,7 @@ func (s *settings) checkReference(j *job) result.Check {
 		force := map[string]int{}
 		var followed []string
 		if ready.Association {
+			js.judge(d, f, v, stopped, j.ties, br.on, k)
 			var changed, loose []string
 			for _, od := range d.Objects {
 				i, ok := v.byObj[od.Object]
@@ -606,9 +626,11 @@ func (s *settings) checkReference(j *job) result.Check {
 				}
 			}
 			if len(loose) > 0 {
-				div := assocDivergence(k, d, f, v, clusterParts(d, loose), true, true, "the reference")
+				lp := clusterParts(d, loose)
+				div := assocDivergence(k, d, f, v, lp, true, true, "the reference")
 				div.Message += "; " + tangleNote(loose, tangled, stopped)
 				b.tie(div)
+				js.decide(lp, true)
 				for _, o := range loose {
 					tieAt(o, k)
 					stop(o, k)
@@ -631,8 +653,10 @@ func (s *settings) checkReference(j *job) result.Check {
 				}
 				if len(clear) > 0 {
 					b.fail(assocDivergence(k, d, f, v, clear, false, true, "the reference"))
+					js.decide(clear, false)
 				}
 				if len(unfollowable) > 0 {
+					js.decide(unfollowable, false)
 					div := assocDivergence(k, d, f, v, unfollowable, true, true, "the reference")
 					div.Message += fmt.Sprintf("; the cluster's margin is within the tie margin %g, but the tracker's choice is not a hypothesis of the reference's k best within it, so the tie rule does not apply", j.sc.tie)
 					b.fail(div)
@@ -642,6 +666,7 @@ func (s *settings) checkReference(j *job) result.Check {
 				}
 				if len(follow) > 0 {
 					b.tie(assocDivergence(k, d, f, v, follow, true, true, "the reference"))
+					js.decide(follow, true)
 					for _, p := range follow {
 						for _, o := range p.objects {
 							tieAt(o, k)
@@ -874,14 +899,7 @@ func sameStates(a, b *tracker.Detail) bool {
 // structure (cluster −1) the scan's hypotheses are searched and the whole
 // scan is returned.
 func tiedChoice(d *tracker.Detail, p part, assoc []int, threshold float64) (map[string]int, bool) {
-	agrees := func(rows []int, h []int) bool {
-		for a, row := range rows {
-			if row >= len(assoc) || a >= len(h) || assoc[row] != -2 && h[a] != assoc[row] {
-				return false
-			}
-		}
-		return true
-	}
+	agrees := func(rows []int, h []int) bool { return agreesWith(rows, h, assoc) }
 	if p.cluster < 0 {
 		if len(d.Hypotheses) == 0 {
 			return nil, false
@@ -1081,6 +1099,14 @@ func (s *settings) checkConformance(j *job) result.Check {
 		v := newView(&dd, f, j.names)
 		var changed []string
 		var estDivs, idDivs []result.Divergence
+		// Without reported associations, an object of a tied cluster may
+		// rightly follow another hypothesis within τ of the cluster's
+		// best: the one whose posteriors are nearest the tracker's
+		// estimates (nearestHypothesis, as the reference check picks it).
+		var alt *tiedAlternative
+		if !ready.Association {
+			alt = newTiedAlternative(filt, &dd, j.run.Scans[k], f, v, j.sc.tie)
+		}
 		for _, od := range dd.Objects {
 			i, ok := v.byObj[od.Object]
 			if !ok {
@@ -1115,6 +1141,9 @@ func (s *settings) checkConformance(j *job) result.Check {
 					continue
 				}
 			}
+			if alt.agrees(j.sc.profile, k, est, od) {
+				continue
+			}
 			estDivs = append(estDivs, estimateDivergence(k, od.Object, r, "one step from the tracker's own previous estimate, the update differs"))
 			b.diffs(r.Diffs)
 		}
@@ -1122,6 +1151,9 @@ func (s *settings) checkConformance(j *job) result.Check {
 		// same step.
 		if len(changed) > 0 {
 			judgeChange(b, k, &dd, f, v, changed, j.sc.tie, "the reference restarted from the tracker's state")
+		}
+		for _, div := range alt.ties(k) {
+			b.tie(div)
 		}
 		for _, d := range append(idDivs, estDivs...) {
 			b.fail(d)
@@ -1257,4 +1289,196 @@ func startedFrom(f *kalman.Filter, p compare.Profile, k int, est mot.Estimate, d
 		}
 	}
 	return ""
+}
+
+// refJudgement is what the reference check decided about a run's
+// associations, step by step, for the checks of the same run that judge
+// associations after it: the golden output check takes its decisions
+// rather than the margins of the reference's own run, which no longer
+// describe the tracker's situation once it took the other branch at a tie,
+// and the timeline takes its labels.
+type refJudgement struct {
+	steps []judgedStep
+}
+
+// judgedStep is the reference check's judgement of one step.
+type judgedStep struct {
+	// label is "same" (no association changed), "tie" (every change was
+	// a tie) or "differs" (one was a regression).
+	label string
+	// judged holds, per object, the decision on its association at this
+	// step: a change the check judged (tie or regression), a change of an
+	// object no longer compared (a tie when it had one at or before this
+	// step), and, on the reference's branch, an association that agrees
+	// with the branch's (a tie: the reference makes the same choice once
+	// it follows the tracker). The margin is the object's cluster margin
+	// in the step the check compared.
+	judged map[string]assocVerdict
+}
+
+// assocVerdict is the decision on one object's association at one step.
+type assocVerdict struct {
+	tie    bool
+	margin float64
+}
+
+// judgements holds each job's reference judgement while the job lives.
+// Keyed weakly so that a finished check leaves nothing behind.
+var judgements sync.Map // weak.Pointer[job] → *refJudgement
+
+// recordJudgement makes rj the reference judgement of j.
+func recordJudgement(j *job, rj *refJudgement) {
+	key := weak.Make(j)
+	if _, loaded := judgements.Swap(key, rj); !loaded {
+		runtime.AddCleanup(j, func(k weak.Pointer[job]) { judgements.Delete(k) }, key)
+	}
+}
+
+// judgementOf returns the reference judgement recorded for j's frames,
+// or nil when the reference check has not judged them.
+func judgementOf(j *job) *refJudgement {
+	v, ok := judgements.Load(weak.Make(j))
+	if !ok {
+		return nil
+	}
+	rj := v.(*refJudgement)
+	if len(rj.steps) != len(j.res.Frames) {
+		return nil
+	}
+	return rj
+}
+
+// set records the decision for objects and raises the step's label.
+func (st *judgedStep) set(o string, tie bool, margin float64) {
+	if st.judged == nil {
+		st.judged = map[string]assocVerdict{}
+	}
+	st.judged[o] = assocVerdict{tie: tie, margin: margin}
+	switch {
+	case !tie:
+		st.label = "differs"
+	case st.label == "same":
+		st.label = "tie"
+	}
+}
+
+// decide records the check's decision on the changed objects of parts.
+func (st *judgedStep) decide(parts []part, tie bool) {
+	for _, p := range parts {
+		for _, o := range p.objects {
+			st.set(o, tie, p.margin)
+		}
+	}
+}
+
+// judge records, before the step's changes are judged, the objects the
+// check does not judge as changes: those no longer compared whose
+// association differs from d's (a tie when the object had one at or
+// before step k, else the consequence of its regression) and, when d is
+// the reference's branch, those whose association agrees with it (a tie,
+// as the branch was forked at one). The label is raised only by the
+// former: agreeing with the branch is no change.
+func (st *judgedStep) judge(d *tracker.Detail, f mot.Frame, v view, stopped, ties map[string]int, onBranch bool, k int) {
+	for _, od := range d.Objects {
+		i, ok := v.byObj[od.Object]
+		if !ok || !f.Tracks[i].HasDetection {
+			continue
+		}
+		m := clusterParts(d, []string{od.Object})[0].margin
+		_, gone := stopped[od.Object]
+		switch {
+		case gone && f.Tracks[i].Detection != od.Detection:
+			t, tied := ties[od.Object]
+			st.set(od.Object, tied && t <= k, m)
+		case !gone && onBranch && f.Tracks[i].Detection == od.Detection:
+			if st.judged == nil {
+				st.judged = map[string]assocVerdict{}
+			}
+			st.judged[od.Object] = assocVerdict{tie: true, margin: m}
+		}
+	}
+}
+
+// tiedAlternative holds, for one restarted step of the conformance check
+// of a tracker that does not report associations, the hypothesis of each
+// ambiguous cluster (ambiguousParts) whose posterior means are nearest the
+// tracker's estimates, when it is not the cluster's best, and the objects
+// whose estimates it explained.
+type tiedAlternative struct {
+	filt  *kalman.Filter
+	d     *tracker.Detail
+	scan  mot.Scan
+	pick  map[string]tiedPick // object → its cluster's nearest hypothesis
+	order []int               // clusters in order of first use
+	used  map[int][]string    // cluster → objects explained, in order
+}
+
+// tiedPick is the nearest hypothesis of an object's cluster and the
+// object's detection under it.
+type tiedPick struct {
+	cluster, rank, det int
+	dist               []float64
+}
+
+func newTiedAlternative(filt *kalman.Filter, d *tracker.Detail, scan mot.Scan, f mot.Frame, v view, threshold float64) *tiedAlternative {
+	parts := ambiguousParts(d, threshold)
+	if len(parts) == 0 {
+		return nil
+	}
+	ta := &tiedAlternative{filt: filt, d: d, scan: scan, pick: map[string]tiedPick{}, used: map[int][]string{}}
+	for _, p := range parts {
+		rank, dist := nearestHypothesis(filt, d, p, scan, f, v, nil, threshold)
+		if rank <= 0 {
+			continue
+		}
+		cd := &d.PerCluster[p.cluster]
+		for a, row := range cd.Rows {
+			ta.pick[d.Objects[row].Object] = tiedPick{cluster: p.cluster, rank: rank, det: cd.Hypotheses[rank].Assoc[a], dist: dist}
+		}
+	}
+	return ta
+}
+
+// agrees reports whether the estimate est of object od agrees, under the
+// profile, with od's update under the nearest hypothesis of its cluster,
+// and records it as explained by that hypothesis.
+func (ta *tiedAlternative) agrees(p compare.Profile, k int, est mot.Estimate, od tracker.ObjectDetail) bool {
+	if ta == nil {
+		return false
+	}
+	pk, ok := ta.pick[od.Object]
+	if !ok {
+		return false
+	}
+	mean, cov, err := updateWith(ta.filt, od, pk.det, ta.scan)
+	if err != nil {
+		return false
+	}
+	if r := compareEstimate(p, k, est, od.Object, mean, cov); !r.OK() {
+		return false
+	}
+	if _, seen := ta.used[pk.cluster]; !seen {
+		ta.order = append(ta.order, pk.cluster)
+	}
+	ta.used[pk.cluster] = append(ta.used[pk.cluster], od.Object)
+	return true
+}
+
+// ties returns one tie per cluster whose nearest hypothesis explained an
+// estimate at step k.
+func (ta *tiedAlternative) ties(k int) []result.Divergence {
+	if ta == nil {
+		return nil
+	}
+	var out []result.Divergence
+	for _, c := range ta.order {
+		objs := ta.used[c]
+		pk := ta.pick[objs[0]]
+		cd := &ta.d.PerCluster[c]
+		pr, m := cd.Hypotheses[pk.rank].Prob, cd.Margin
+		out = append(out, result.Divergence{Step: k, Kind: "association", Objects: objs, Probability: &pr, Margin: &m,
+			Message: fmt.Sprintf("restarted from the tracker's state, the estimates of %s agree with the reference's hypothesis %d of their cluster, nearest the tracker's (Mahalanobis distances² summed: %.4g for it, %.4g for the best), within the tie margin of the best (margin %.4g), and not with the best",
+				strings.Join(objs, ", "), pk.rank+1, pk.dist[pk.rank], pk.dist[0], cd.Margin)})
+	}
+	return out
 }
