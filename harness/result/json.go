@@ -67,6 +67,9 @@ func Unmarshal(name string, data []byte) (*Suite, error) {
 	s := new(Suite)
 	err = decodeValue(reflect.ValueOf(s).Elem(), tree, "")
 	if err == nil {
+		err = checkStatuses(obj)
+	}
+	if err == nil {
 		err = validate(s)
 	}
 	if err != nil {
@@ -101,8 +104,9 @@ const (
 // nees_steps absent or as long as nees, ascending and ≥ 0; the NIS
 // bounds and steps (nis_low_by_step, nis_high_by_step, nis_steps) all
 // absent or all as long as nis, the steps ascending and ≥ 0;
-// well-formed gate rules. Errors are fieldErrors, so
-// that Unmarshal names the line and column.
+// well-formed gate rules. The statuses are checked before, on the JSON
+// tree (checkStatuses). Errors are fieldErrors, so that Unmarshal names
+// the line and column.
 func validate(s *Suite) error {
 	if sh := s.Shard; sh != nil {
 		if sh.Total < 1 {
@@ -196,6 +200,72 @@ func validate(s *Suite) error {
 				if !(pr.MinEffect >= 0) || math.IsInf(pr.MinEffect, 0) {
 					return fieldErr(p+".paired.min_effect", "expected a finite effect size ≥ 0, got %g", pr.MinEffect)
 				}
+			}
+		}
+	}
+	return nil
+}
+
+// knownStatuses are the statuses a result file may hold, best first.
+var knownStatuses = []Status{Pass, Tie, Skip, Fail, Error, Faulted}
+
+// checkStatus returns a fieldError for a status outside knownStatuses: an
+// unknown status would otherwise rank as Error and be carried, misspelt,
+// into the merged suite's status and the exit code.
+func checkStatus(path string, st Status) error {
+	for _, k := range knownStatuses {
+		if st == k {
+			return nil
+		}
+	}
+	return fieldErr(path, `expected one of "pass", "tie", "skip", "fail", "error", "fault", got %q`, string(st))
+}
+
+// checkStatuses checks, on the decoded JSON tree (whose member types
+// decodeValue has already checked), the status of the suite and of every
+// scenario, run, check and scenario gate, in file order: each must be one
+// of knownStatuses. An absent status, which reads as the empty string and
+// is written back as "", is left to the schema (which requires it): the
+// reader still takes minimal files without one, and what it writes it
+// must read again.
+func checkStatuses(tree map[string]any) error {
+	check := func(path string, obj map[string]any) error {
+		st, _ := obj["status"].(string)
+		if st == "" {
+			return nil
+		}
+		return checkStatus(join(path, "status"), Status(st))
+	}
+	objects := func(obj map[string]any, key string) []map[string]any {
+		arr, _ := obj[key].([]any)
+		out := make([]map[string]any, len(arr))
+		for i, x := range arr {
+			out[i], _ = x.(map[string]any)
+		}
+		return out
+	}
+	if err := check("", tree); err != nil {
+		return err
+	}
+	for i, sc := range objects(tree, "scenarios") {
+		p := fmt.Sprintf("scenarios[%d]", i)
+		if err := check(p, sc); err != nil {
+			return err
+		}
+		for k, r := range objects(sc, "runs") {
+			rp := fmt.Sprintf("%s.runs[%d]", p, k)
+			if err := check(rp, r); err != nil {
+				return err
+			}
+			for c, ch := range objects(r, "checks") {
+				if err := check(fmt.Sprintf("%s.checks[%d]", rp, c), ch); err != nil {
+					return err
+				}
+			}
+		}
+		for g, gt := range objects(sc, "gates") {
+			if err := check(fmt.Sprintf("%s.gates[%d]", p, g), gt); err != nil {
+				return err
 			}
 		}
 	}
