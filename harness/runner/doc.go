@@ -105,14 +105,26 @@
 //     detection it chose. A fault is thus placed at one step and told apart
 //     as an association or an estimation fault, without the cascade that
 //     follows a first divergence; a tie resolved the other way passes, as
-//     the next step restarts from the tracker's state. At an object's first
-//     step, a track whose estimate is instead another appearing object's
-//     prior updated with the tracker's detection is reported as an identity
-//     divergence (the track started as one object and follows another), a
-//     tie when the clusters of both objects have margins within τ.
+//     the next step restarts from the tracker's state. For a tracker that
+//     does not report associations, an estimate of an object in a cluster
+//     of the restarted step whose margin is within τ that differs from the
+//     update under the cluster's best hypothesis is compared with the
+//     update under the hypothesis within τ of the best whose posterior
+//     means are nearest the tracker's (as the reference check picks it);
+//     when it agrees, the cluster's change is a tie, not a regression. At
+//     an object's first step, a track whose estimate is instead another
+//     appearing object's prior updated with the tracker's detection is
+//     reported as an identity divergence (the track started as one object
+//     and follows another), a tie when the clusters of both objects have
+//     margins within τ.
 //   - identity: compare.Follow matches tracks step by step; a track that
 //     changes object, or an object that changes track, is a divergence of
 //     kind "identity".
+//
+// The association timeline of a run's plot trace labels each step as the
+// reference check judged it ("same", "tie" or "differs"), so after a tie
+// the tracker resolved the other way a step that agrees with the
+// reference's branch reads "same".
 //
 // # Checks against golden files
 //
@@ -128,11 +140,18 @@
 // simulator and the reference produce now is an error naming them (the
 // harness changed, not the tracker); the tracker's frames are compared with
 // its blessed frames after alignment, under the same profile and tie rule
-// as the reference check: a changed association is judged by the margins
-// of the reference's clusters in which it happens (the blessed tracks are
-// mapped to the reference's objects by aligning the blessed frames with
-// the reference's), and a track is not compared after its association
-// changed. The tracker's metrics are compared under the profile's metric
+// as the reference check: a changed association takes the decision the
+// reference check made for that object at that step (the reference check
+// is run for this alone when only the goldens are compared), so that after
+// a tie the tracker resolved the other way it is judged down the tracker's
+// branch, where the reference's own run no longer describes the tracker's
+// situation; an association that agrees with the branch is a tie, and a
+// change of an object the reference check no longer compares is a tie when
+// that object had one. A change the reference check did not judge (it
+// agrees with the reference's own run) is judged by the margins of the
+// reference's clusters in which it happens (the blessed tracks are mapped
+// to the reference's objects by aligning the blessed frames with the
+// reference's). A track is not compared after its association changed. The tracker's metrics are compared under the profile's metric
 // rule. The tracker's output, metrics and run values are blessed as one
 // unit (when one is rewritten, so are the others), so a metrics difference
 // while the output agrees means an inconsistent golden, an error that asks
