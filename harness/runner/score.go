@@ -32,9 +32,9 @@ type runScore struct {
 	// definite, left out of the NEES; firstSkip describes the first.
 	skipped   int
 	firstSkip string
-	// mapping is the per-step GOSPA matching of track names to object ids
-	// ("" for a false track), kept for the NIS (addNIS).
-	mapping []map[string]string
+	// steps is the number of scored steps, the length of the NIS series
+	// (addNIS).
+	steps int
 }
 
 // withoutSingular returns frames in which every track mapped to a live
@@ -197,7 +197,7 @@ func score(run mot.Run, frames []mot.Frame, pos, vel []int, p, c float64, n int)
 		m.Objects = append(m.Objects, result.ObjectError{Object: o.Object,
 			RMSEPosition: o.PositionRMSE, RMSEVelocity: o.VelocityRMSE, Steps: o.Covered})
 	}
-	rs := &runScore{metrics: m, nees: sc.NEES, mapping: mapping}
+	rs := &runScore{metrics: m, nees: sc.NEES, steps: steps}
 	rs.whole = map[string]float64{
 		MetricMeanGOSPA: m.MeanGOSPA, MetricPositionRMSE: m.PositionRMSE,
 		MetricIDSwitches: float64(m.IDSwitches), MetricTrackBreaks: float64(m.TrackBreaks),
@@ -340,11 +340,15 @@ func valuesOf(m map[string]float64) []result.Value {
 const NISConfidence = 0.95
 
 // addNIS fills the NIS series of rs from frames, the frames rs was scored
-// on, under model and the run's scans. At step k ≥ 1, a track mapped to an
-// object (rs.mapping) that reports the detection it was updated with, and
-// that reported a covariance under the same name at step k−1, gives one
-// sample: the track's previous estimate (x, P) is predicted with the
-// model, x⁻ = F x and P⁻ = F P Fᵀ + Q, projected, ẑ = H x⁻ and
+// on, under model and the run's scans. At step k ≥ 1, every track that
+// reports the detection it was updated with, and that reported a
+// covariance under the same name (the tracker's own track id) at step
+// k−1, gives one sample, whether or not the GOSPA matching maps it to an
+// object: the NIS needs no ground truth, and a track that has drifted
+// beyond the cut-off from every object has the largest innovations, which
+// must not drop out of the consistency check. For the sample, the
+// track's previous estimate (x, P) is predicted with the model,
+// x⁻ = F x and P⁻ = F P Fᵀ + Q, projected, ẑ = H x⁻ and
 // S = H P⁻ Hᵀ + R, and NIS = νᵀ S⁻¹ ν with ν = z − ẑ for the detection z
 // the track named. This is the innovation the Kalman update of the
 // track's own state with its own choice of detection would see; for the
@@ -360,7 +364,7 @@ const NISConfidence = 0.95
 //     consistent filter) and §5.2 (the innovation and its covariance).
 func addNIS(rs *runScore, model mot.Model, scans []mot.Scan, frames []mot.Frame) error {
 	m := rs.metrics
-	steps := len(rs.mapping)
+	steps := rs.steps
 	if model.MeasDim < 1 || model.StateDim < 1 {
 		return nil
 	}
@@ -379,7 +383,7 @@ func addNIS(rs *runScore, model mot.Model, scans []mot.Scan, frames []mot.Frame)
 			prev[e.Track] = e
 		}
 		for _, e := range frames[k].Tracks {
-			if !e.HasDetection || e.Detection == mot.NoDetection || rs.mapping[k][e.Track] == "" {
+			if !e.HasDetection || e.Detection == mot.NoDetection {
 				continue
 			}
 			pe, ok := prev[e.Track]

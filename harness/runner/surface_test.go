@@ -31,14 +31,14 @@ func est(track string, x ...float64) mot.Estimate {
 // are the hand-computed localisation, missed and false parts and add up
 // to the stored GOSPA to the power p; their time averages are stored too.
 //
-// Formula: Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A
-// metric for evaluating multi-object tracking algorithms", IEEE Trans.
-// Signal Processing 68, 2020 (α = 2: GOSPAᵖ = Σ_{γ} dᵖ + (cᵖ/2)·(m + n −
-// 2|γ|)); Rahmathullah, García-Fernández, Svensson, FUSION 2017,
-// Proposition 1. Case G1 (X = {(0,0), (10,0)}, Y = {(1,0), (10,2)}, c = 5,
-// p = 2: GOSPA = √5, loc 5, no miss, no false) is from
-// /work/shared/CHECK-VALUES.md §1.3; the others are computed by hand
-// below.
+// Formula: A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson,
+// "Generalized optimal sub-pattern assignment metric", 20th Int. Conf. on
+// Information Fusion (FUSION), 2017, Proposition 1 (α = 2:
+// GOSPAᵖ = min_γ Σ_{γ} dᵖ + (cᵖ/2)·(m + n − 2|γ|)). Every case is computed
+// by hand from that formula; case G1 (X = {(0,0), (10,0)},
+// Y = {(1,0), (10,2)}, c = 5): the pairs are 1 m and 2 m apart, both below
+// c, so with p = 2 GOSPA² = 1² + 2² = 5 (GOSPA = √5, loc 5, no miss, no
+// false) and with p = 1 GOSPA = 1 + 2 = 3.
 func TestSurfaceGOSPASplitPublished(t *testing.T) {
 	for _, tt := range []struct {
 		name                string
@@ -48,7 +48,7 @@ func TestSurfaceGOSPASplitPublished(t *testing.T) {
 		gospa               float64
 		loc, missed, falsep float64
 	}{
-		// G1 of CHECK-VALUES §1.3.
+		// G1, by hand as above.
 		{"G1 p=2", [][4]float64{{0, 0, 0, 0}, {10, 0, 0, 0}}, [][4]float64{{1, 0, 0, 0}, {10, 0, 2, 0}}, 2, 5, math.Sqrt(5), 5, 0, 0},
 		{"G1 p=1", [][4]float64{{0, 0, 0, 0}, {10, 0, 0, 0}}, [][4]float64{{1, 0, 0, 0}, {10, 0, 2, 0}}, 1, 5, 3, 3, 0, 0},
 		// One track 5 m (3-4-5) from the first object; the second object
@@ -199,7 +199,9 @@ func nisModel() mot.Model {
 // estimate, by hand. Previous estimate x = [0, 1], P = I; F = [[1, 1],
 // [0, 1]], Q = ½I: x⁻ = [1, 1], P⁻ = F P Fᵀ + Q = [[2.5, 1], [1, 1.5]];
 // H = [1, 0], R = ½: S = 3; z = 4 gives ν = 3 and NIS = 9/3 = 3, z = 0
-// gives ν = −1 and NIS = 1/3. Formula: Bar-Shalom, Li, Kirubarajan,
+// gives ν = −1 and NIS = 1/3. The NIS needs no ground truth: with the buoy
+// 500 m away, beyond the GOSPA cut-off of 20 m, the track is a false track
+// for GOSPA and still gives the same sample. Formula: Bar-Shalom, Li, Kirubarajan,
 // "Estimation with Applications to Tracking and Navigation", Wiley, 2001,
 // §5.2 (innovation covariance S = H P⁻ Hᵀ + R) and §5.4.2 (NIS νᵀS⁻¹ν).
 func TestSurfaceNISByHand(t *testing.T) {
@@ -212,16 +214,22 @@ func TestSurfaceNISByHand(t *testing.T) {
 		z       float64
 		hasDet  bool
 		prevCov mot.Mat
+		far     bool      // the buoy beyond the cut-off from the track
 		want    []float64 // samples at step 1; nil for none
 	}{
-		{"ahead", 4, true, eye, []float64{3}},
-		{"behind", 0, true, eye, []float64{1.0 / 3}},
-		{"no association reported", 4, false, eye, nil},
-		{"no previous covariance", 4, true, mot.Mat{}, nil},
+		{"ahead", 4, true, eye, false, []float64{3}},
+		{"beyond the cut-off", 4, true, eye, true, []float64{3}},
+		{"behind", 0, true, eye, false, []float64{1.0 / 3}},
+		{"no association reported", 4, false, eye, false, nil},
+		{"no previous covariance", 4, true, mot.Mat{}, false, nil},
 	} {
 		t.Run(tt.name, func(t *testing.T) {
+			off := 0.0
+			if tt.far {
+				off = 500
+			}
 			run := mot.Run{
-				Truth: []mot.Truth{truth(0, 0), truth(1, 1)},
+				Truth: []mot.Truth{truth(0, off), truth(1, 1+off)},
 				Scans: []mot.Scan{{Step: 0}, {Step: 1, Detections: []mot.Detection{{ID: 7, Z: []float64{tt.z}}}}},
 			}
 			frames := []mot.Frame{
@@ -234,6 +242,9 @@ func TestSurfaceNISByHand(t *testing.T) {
 			rs := score(run, frames, []int{0}, []int{1}, 2, 20, 2)
 			if rs.err != nil {
 				t.Fatal(rs.err)
+			}
+			if tt.far && (rs.metrics.FalseTracks == 0 || rs.metrics.GOSPAFalse[1] == 0) {
+				t.Fatalf("the track is not beyond the cut-off: %+v", rs.metrics)
 			}
 			if err := addNIS(rs, nisModel(), run.Scans, frames); err != nil {
 				t.Fatal(err)
@@ -255,8 +266,10 @@ func TestSurfaceNISByHand(t *testing.T) {
 				t.Errorf("series %v, mean %v", m.NIS, m.MeanNIS)
 			}
 			// χ²₁ two-sided 95 %: [0.000982069, 5.023886187]
-			// (CHECK-VALUES.md §3.2, scipy.stats.chi2.ppf): both samples
-			// lie inside.
+			// (scipy.stats.chi2.ppf(0.025 and 0.975, 1); 0.001 and 5.024
+			// in the NIST/SEMATECH e-Handbook of Statistical Methods,
+			// 2012, §1.3.6.7.4, critical values of the chi-square
+			// distribution, ν = 1): both samples lie inside.
 			if m.NISSamplesInBand != 1 {
 				t.Errorf("fraction in band %v, want 1", m.NISSamplesInBand)
 			}
@@ -301,7 +314,7 @@ func TestSurfaceReferenceNISIsItsOwn(t *testing.T) {
 		}
 		i := 0
 		for _, e := range ex.Frames[k].Tracks {
-			if !e.HasDetection || e.Detection == mot.NoDetection || rs.mapping[k][e.Track] == "" || k == 0 {
+			if !e.HasDetection || e.Detection == mot.NoDetection || k == 0 {
 				continue
 			}
 			if !hasTrack(ex.Frames[k-1], e.Track) {
@@ -347,9 +360,14 @@ func hasTrack(f mot.Frame, name string) bool {
 // and OSPA, pools each object's RMSE weighted by its covered steps, and
 // judges the per-step NIS averages against the band of their own sample
 // counts. Band values: χ²₂ two-sided 95 % for one sample [0.050635616,
-// 7.377758908] (CHECK-VALUES.md §3.2, scipy.stats.chi2.ppf; for two
-// degrees of freedom also the closed form −2·ln(1 − q) of the χ²₂
-// distribution function 1 − e^(−x/2), common practice).
+// 7.377758908] (scipy.stats.chi2.ppf(0.025 and 0.975, 2); 0.051 and 7.378
+// in the NIST/SEMATECH e-Handbook of Statistical Methods, 2012,
+// §1.3.6.7.4, critical values of the chi-square distribution, ν = 2; for
+// two degrees of freedom also the closed form −2·ln(1 − q) of the χ²₂
+// distribution function 1 − e^(−x/2), common practice). For the three
+// samples of step 1, N·ε̄ ~ χ²₆ and the band is [1.237344246,
+// 14.449375335]/3 (scipy.stats.chi2.ppf(0.025 and 0.975, 6); 1.237 and
+// 14.449 in the same NIST table, ν = 6).
 func TestSurfaceSummaryPools(t *testing.T) {
 	runA := result.Run{Index: 0, Status: result.Pass, Values: []result.Value{}, Metrics: &result.RunMetrics{
 		GOSPA: []float64{3, 5}, MeanGOSPA: 4,
@@ -407,13 +425,11 @@ func TestSurfaceSummaryPools(t *testing.T) {
 	if math.Abs(m.NISLowByStep[0]-0.050635616) > 1e-9 || math.Abs(m.NISHighByStep[0]-7.377758908) > 1e-9 {
 		t.Errorf("band at step 0 [%v, %v], want [0.050635616, 7.377758908]", m.NISLowByStep[0], m.NISHighByStep[0])
 	}
-	lo3, hi3 := metrics.Interval(2, 3, NISConfidence)
-	if m.NISLowByStep[1] != lo3 || m.NISHighByStep[1] != hi3 {
-		t.Errorf("band at step 1 [%v, %v], want [%v, %v]", m.NISLowByStep[1], m.NISHighByStep[1], lo3, hi3)
+	if math.Abs(m.NISLowByStep[1]-1.237344246/3) > 1e-9 || math.Abs(m.NISHighByStep[1]-14.449375335/3) > 1e-9 {
+		t.Errorf("band at step 1 [%v, %v], want [1.237344246, 14.449375335]/3", m.NISLowByStep[1], m.NISHighByStep[1])
 	}
-	// Step 0 (3) lies in its band; step 1 (mean 4 of 3 samples, χ²₆/3
-	// band [1.237344246, 14.449375335]/3 = [0.4124, 4.8165], CHECK-VALUES.md
-	// §3.2 single-run table for n = 6) too.
+	// Step 0 (3) lies in its band; step 1 (mean 4 of 3 samples, band
+	// [0.4124, 4.8165], see above) too.
 	eq("steps in band", m.NISInBand, 1)
 }
 
