@@ -71,8 +71,8 @@
 //   - Y. Bar-Shalom, X. R. Li, T. Kirubarajan, "Estimation with Applications
 //     to Tracking and Navigation", Wiley, 2001, §5.4 (NEES, NIS and their
 //     two-sided acceptance intervals).
-//   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric for
-//     evaluating multi-object tracking algorithms", IEEE Trans. Signal
-//     Processing 68, 2020 (the GOSPA parts).
+//   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
+//     optimal sub-pattern assignment metric", FUSION 2017 (GOSPA with α = 2
+//     and its localisation, missed and false parts).
 //   - JUnit XML: Apache Ant JUnit task output; GitLab "Unit test reports".
 package report
