@@ -56,6 +56,9 @@ type job struct {
 	// blessed holds the tracker's blessed whole-run metrics, when read.
 	blessed map[string]float64
 	ties    map[string]int // object → first step of a tie (reference check)
+	// judged is what the reference check decided at each step, for the
+	// golden check and the timeline (nil until it has judged the run).
+	judged *refJudgement
 	// partedFromGolden reports that the tracker's output stopped being
 	// compared with its golden after a changed association.
 	partedFromGolden bool
@@ -176,7 +179,7 @@ var batchRuns = 0
 func (j *job) release() {
 	j.run, j.ex = mot.Run{}, tracker.Expected{}
 	j.res = driver.Result{Tracker: j.res.Tracker}
-	j.names, j.score, j.refSc, j.blessed, j.ties = nil, nil, nil, nil, nil
+	j.names, j.score, j.refSc, j.blessed, j.ties, j.judged = nil, nil, nil, nil, nil, nil
 }
 
 // RunsPerProcess is the number of consecutive runs of a scenario that one

@@ -232,10 +232,8 @@
 //
 // References:
 //   - A. S. Rahmathullah, Á. F. García-Fernández, L. Svensson, "Generalized
-//     optimal sub-pattern assignment metric", FUSION 2017 (GOSPA, p = 2, α = 2).
-//   - Á. F. García-Fernández, A. S. Rahmathullah, L. Svensson, "A metric for
-//     evaluating multi-object tracking algorithms", IEEE Trans. Signal
-//     Processing 68, 2020 (the localisation, missed and false parts).
+//     optimal sub-pattern assignment metric", FUSION 2017 (GOSPA, p = 2,
+//     α = 2, and its localisation, missed and false parts).
 //   - D. Schuhmacher, B.-T. Vo, B.-N. Vo, "A consistent metric for performance
 //     evaluation of multi-object filters", IEEE Trans. Signal Processing
 //     56(8):3447–3457, 2008 (OSPA).

@@ -3,12 +3,9 @@ package runner
 import (
 	"fmt"
 	"math"
-	"runtime"
 	"slices"
 	"sort"
 	"strings"
-	"sync"
-	"weak"
 
 	"gonum.org/v1/gonum/mat"
 
@@ -1322,30 +1319,16 @@ type assocVerdict struct {
 	margin float64
 }
 
-// judgements holds each job's reference judgement while the job lives.
-// Keyed weakly so that a finished check leaves nothing behind.
-var judgements sync.Map // weak.Pointer[job] → *refJudgement
-
 // recordJudgement makes rj the reference judgement of j.
-func recordJudgement(j *job, rj *refJudgement) {
-	key := weak.Make(j)
-	if _, loaded := judgements.Swap(key, rj); !loaded {
-		runtime.AddCleanup(j, func(k weak.Pointer[job]) { judgements.Delete(k) }, key)
-	}
-}
+func recordJudgement(j *job, rj *refJudgement) { j.judged = rj }
 
 // judgementOf returns the reference judgement recorded for j's frames,
 // or nil when the reference check has not judged them.
 func judgementOf(j *job) *refJudgement {
-	v, ok := judgements.Load(weak.Make(j))
-	if !ok {
-		return nil
+	if rj := j.judged; rj != nil && len(rj.steps) == len(j.res.Frames) {
+		return rj
 	}
-	rj := v.(*refJudgement)
-	if len(rj.steps) != len(j.res.Frames) {
-		return nil
-	}
-	return rj
+	return nil
 }
 
 // set records the decision for objects and raises the step's label.
