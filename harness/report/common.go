@@ -232,3 +232,17 @@ func detailRuns(sc *result.Scenario, limit int) (runs []*result.Run, more int) {
 func moreRuns(more int) string {
 	return fmt.Sprintf("%s that did not pass not shown; the JSON and HTML reports have them all", plural(more, "more run", "more runs"))
 }
+
+// gateBounds describes a gate's confidence bounds after its estimate: "in
+// [lo, hi]" for a two-sided interval, "with lower bound lo" for the
+// one-sided bound of a paired gate (hi = +Inf), "with upper bound hi" when
+// lo = −Inf.
+func gateBounds(g result.Gate) string {
+	switch {
+	case math.IsInf(g.High, 1) && !math.IsInf(g.Low, 0):
+		return "with one-sided lower bound " + num(g.Low)
+	case math.IsInf(g.Low, -1) && !math.IsInf(g.High, 0):
+		return "with one-sided upper bound " + num(g.High)
+	}
+	return "in [" + num(g.Low) + ", " + num(g.High) + "]"
+}

@@ -157,7 +157,7 @@ func htmlScenarioOf(sc *result.Scenario, i int) htmlScenario {
 			continue
 		}
 		h.Problems = append(h.Problems, htmlProblem{Title: "gate " + g.Name + ": " + statusWord(g.Status), StatusClass: string(g.Status),
-			Lines: []string{fmt.Sprintf("%s (estimate %s in [%s, %s], threshold %s)", g.Message, num(g.Estimate), num(g.Low), num(g.High), num(g.Threshold))}})
+			Lines: []string{fmt.Sprintf("%s (estimate %s %s, threshold %s)", g.Message, num(g.Estimate), gateBounds(g), num(g.Threshold))}})
 	}
 
 	run := pickRun(sc)

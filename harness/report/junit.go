@@ -189,7 +189,7 @@ func junitScenario(sc *result.Scenario, common []xmlProperty) xmlSuite {
 	}
 	for _, g := range sc.Gates {
 		xc := xmlCase{ClassName: class, Name: "gate/" + g.Name, File: sc.File}
-		body := fmt.Sprintf("estimate %s, interval [%s, %s], threshold %s\n%s", num(g.Estimate), num(g.Low), num(g.High), num(g.Threshold), g.Message)
+		body := fmt.Sprintf("estimate %s %s, threshold %s\n%s", num(g.Estimate), gateBounds(g), num(g.Threshold), g.Message)
 		switch g.Status {
 		case result.Pass, result.Tie:
 			xc.SystemOut = body

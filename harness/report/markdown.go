@@ -227,8 +227,8 @@ func markdownFailures(sc *result.Scenario, limit int) []string {
 	}
 	for _, g := range sc.Gates {
 		if g.Status == result.Fail || g.Status == result.Error {
-			out = append(out, fmt.Sprintf("\n**`%s` gate %s**: %s — %s (estimate %s in [%s, %s], threshold %s)\n",
-				code(sc.Name), cell(g.Name), statusWord(g.Status), cell(g.Message), num(g.Estimate), num(g.Low), num(g.High), num(g.Threshold)))
+			out = append(out, fmt.Sprintf("\n**`%s` gate %s**: %s — %s (estimate %s %s, threshold %s)\n",
+				code(sc.Name), cell(g.Name), statusWord(g.Status), cell(g.Message), num(g.Estimate), gateBounds(g), num(g.Threshold)))
 		}
 	}
 	return out

@@ -172,8 +172,8 @@ func (t *term) details(sc *result.Scenario) {
 		if g.Status == result.Pass || g.Status == result.Tie {
 			continue
 		}
-		t.printf("\n%s gate %s %s: %s (estimate %s in [%s, %s], threshold %s)\n", t.paint(ansiBold, sc.Name), g.Name,
-			t.status(g.Status, 0), visible(g.Message), num(g.Estimate), num(g.Low), num(g.High), num(g.Threshold))
+		t.printf("\n%s gate %s %s: %s (estimate %s %s, threshold %s)\n", t.paint(ansiBold, sc.Name), g.Name,
+			t.status(g.Status, 0), visible(g.Message), num(g.Estimate), gateBounds(g), num(g.Threshold))
 	}
 	if len(sc.Runs) == 0 && sc.Status != result.Pass {
 		t.printf("\n%s: %s, no runs\n", t.paint(ansiBold, sc.Name), t.status(sc.Status, 0))
